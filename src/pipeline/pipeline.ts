@@ -1,0 +1,684 @@
+import { AlertEngine, type AlertChange } from '../alerts/alertEngine.js';
+import type { Condition } from '../alerts/condition.js';
+import type { Detector } from '../detectors/detector.js';
+import type { DetectorContext } from '../detectors/detectorContext.js';
+import type { FrameSteps } from '../detectors/frameSteps.js';
+import type { Frame } from '../frame.js';
+import { Linker } from '../linking/linker.js';
+import { msdLags } from '../msd/msdLags.js';
+import type { Report } from '../report.js';
+import type { Tag } from '../tag.js';
+import { buildReport, type ReportInput } from './buildReport.js';
+import { resolvePipelineOptions, type PipelineOptions, type ResolvedPipelineOptions } from './pipelineOptions.js';
+import {
+  addStats,
+  CVE_PAIRS,
+  CVE_STEPS,
+  CVE_SUM,
+  CVE_SUM_PAIR_TERMS,
+  CVE_SUM_PRODUCTS,
+  CVE_SUM_PRODUCTS_CORRECTED,
+  CVE_SUM_SQUARES,
+  CVE_SUM_SQUARES_CORRECTED,
+  cveOffset,
+  lagOffset,
+  statsLayout,
+  type StatsLayout,
+} from './statsLayout.js';
+import { TimeBlocks } from './timeBlocks.js';
+import { TrackTable, type EndedTrack } from './trackTable.js';
+
+/** Builds the detectors of a run (injected so that src/pipeline does not depend on each detector). */
+export type DetectorFactory = (options: ResolvedPipelineOptions) => Detector[];
+
+/** Counters of what the pipeline refused, for the report and the dashboard. */
+export interface PipelineCounters {
+  frames: number;
+  centroids: number;
+  rejectedFrames: number;
+  backwardsFrames: number;
+  duplicateFrames: number;
+  duplicateIds: number;
+  nonFinite: number;
+}
+
+/**
+ * The one pipeline: frames in (one at a time, in time order), tracks, MSD accumulators,
+ * estimators, detectors and alerts out. Pure and synchronous: the live server and the offline
+ * `analyze` run this same class and get the same numbers for the same data.
+ *
+ * Work per frame is O(particles × lags) plus the detectors; memory is bounded by the live
+ * tracks (one position ring of maxLag + 1 slots each), the time blocks (maxBlocks), the per-track
+ * table (maxTrackTable) and the alerts (1000).
+ *
+ * Bad input policy: a frame whose time is not finite or goes backwards is rejected and counted
+ * (and a backwards time raises a `timing` alert); a frame at an already-seen time slot is counted
+ * as a duplicate and skipped; a centroid with a non-finite coordinate is skipped and counted; a
+ * track id seen twice in one frame keeps its first position.
+ *
+ * @example
+ * const pipeline = new Pipeline({ frameInterval: 0.033, radius: 0.5, temperature: 22 });
+ * pipeline.push({ index: 0, t: 0, count: 1, x: Float64Array.of(1), y: Float64Array.of(2), id: Uint32Array.of(7) });
+ * pipeline.report().input.frames // → 1
+ */
+export class Pipeline {
+  readonly options: ResolvedPipelineOptions;
+  private layout: StatsLayout | undefined;
+  private tracks: TrackTable | undefined;
+  private blocks: TimeBlocks | undefined;
+  private readonly lags: Int32Array;
+  private readonly ringSize: number;
+  private readonly linker: Linker | undefined;
+  private readonly detectors: Detector[];
+  private readonly alertEngine: AlertEngine;
+  private readonly counters: PipelineCounters = {
+    frames: 0,
+    centroids: 0,
+    rejectedFrames: 0,
+    backwardsFrames: 0,
+    duplicateFrames: 0,
+    duplicateIds: 0,
+    nonFinite: 0,
+  };
+  private readonly blur: number;
+  private readonly tags: Tag[] = [];
+  private readonly temperatureLog: { t: number; celsius: number }[] = [];
+  private temperatureSum = 0;
+  private temperatureCount = 0;
+  private latestTemperature: number | undefined;
+  private startTime: number | undefined;
+  private lastTime = -Infinity;
+  private lastSlot = -1;
+  private lastFrameIndex: number | undefined;
+  private dims = 2;
+  // Global running totals (one statistics record) so the context can be refreshed cheaply.
+  private globalStats: Float64Array = new Float64Array(0);
+  // Cumulative common-mode drift X(slot) per axis, in a ring of maxLag + 1 slots.
+  private driftRing: Float64Array = new Float64Array(0);
+  private driftRingSlot: Int32Array = new Int32Array(0);
+  private cumulativeDrift: Float64Array = new Float64Array(3);
+  // Common-mode statistics over the run (per axis): Σm, Σ s²/N, ΣN·m², ΣN·m, ΣN, Σ within-frame SS, Σ(N−1).
+  private commonMode: Float64Array = new Float64Array(21);
+  private commonModeFrames = 0;
+  private commonModeSlots = 0;
+  private inverseCountFrames = 0;
+  private inverseCountSteps = 0;
+  // α2 at the first lag: Σ|Δr'|², Σ|Δr'|⁴, count.
+  private nonGaussianSums = new Float64Array(3);
+  private fieldBox = { xMin: Infinity, xMax: -Infinity, yMin: Infinity, yMax: -Infinity };
+  private firstT: number | undefined;
+  // Per-frame scratch, grown by doubling.
+  private scratchCapacity = 0;
+  private ids: Uint32Array = new Uint32Array(0);
+  private trackIndex: Int32Array = new Int32Array(0);
+  private steps!: FrameSteps;
+  private stepZ: Float64Array = new Float64Array(0);
+  private gapDx: Float64Array = new Float64Array(0);
+  private gapCount = 0;
+  private context: DetectorContext;
+  private framesSinceContext = 0;
+  private alertChanges: AlertChange[] = [];
+  private conditions: Condition[] = [];
+  private readonly contextRefresher: ((pipeline: Pipeline) => Partial<DetectorContext>) | undefined;
+
+  constructor(
+    options: PipelineOptions,
+    detectorFactory?: DetectorFactory,
+    contextRefresher?: (pipeline: Pipeline) => Partial<DetectorContext>,
+  ) {
+    this.options = resolvePipelineOptions(options);
+    const o = this.options;
+    this.lags = msdLags(o.lagCount, o.maxLag, o.consecutiveLags);
+    this.ringSize = this.lags[this.lags.length - 1] + 1;
+    this.blur = o.frameInterval > 0 ? o.exposure / (6 * o.frameInterval) : 0;
+    this.linker = undefined;
+    this.detectors = detectorFactory ? detectorFactory(this.options) : [];
+    this.alertEngine = new AlertEngine();
+    this.contextRefresher = contextRefresher;
+    this.context = {
+      diffusion: undefined,
+      diffusionSe: undefined,
+      localizationError: undefined,
+      blur: this.blur,
+      longestLag: this.lags[this.lags.length - 1] * o.frameInterval,
+      reportedTemperature: o.temperature,
+      expectedDiffusion: undefined,
+      expectedDiffusionSd: undefined,
+      radius: o.radius,
+    };
+    this.lazyLinker = o.maxDisplacement;
+  }
+
+  private lazyLinker: number | undefined;
+  private linkerInstance: Linker | undefined;
+
+  /** The MSD lags in use, frames. */
+  lagFrames(): Int32Array {
+    return this.lags;
+  }
+
+  /** The motion-blur coefficient R = t_E/(6Δt). */
+  blurCoefficient(): number {
+    return this.blur;
+  }
+
+  /** Counters of refused input so far. */
+  counts(): Readonly<PipelineCounters> {
+    return this.counters;
+  }
+
+  /** The alert engine (for acknowledging alerts). */
+  alerts(): AlertEngine {
+    return this.alertEngine;
+  }
+
+  /** Alert changes caused by the last push (open, level, close); the array is reused. */
+  lastAlertChanges(): readonly AlertChange[] {
+    return this.alertChanges;
+  }
+
+  /**
+   * Feed one frame. Frames must come in time order; see the class doc for what is refused.
+   * O(count × lags).
+   */
+  push(frame: Frame): void {
+    this.alertChanges = [];
+    const o = this.options;
+    const t = frame.t;
+    if (!Number.isFinite(t) || !Number.isFinite(frame.index)) {
+      this.counters.rejectedFrames++;
+      return;
+    }
+    if (t < this.lastTime) {
+      this.counters.rejectedFrames++;
+      this.counters.backwardsFrames++;
+      this.noteBackwards(t, frame.index);
+      return;
+    }
+    if (this.startTime === undefined) {
+      this.startTime = t;
+      this.initialise(frame);
+    }
+    const slot = Math.round((t - (this.startTime as number)) / o.frameInterval);
+    if (t === this.lastTime || slot <= this.lastSlot || (this.lastFrameIndex !== undefined && frame.index === this.lastFrameIndex)) {
+      this.counters.duplicateFrames++;
+      this.noteDuplicate(t, frame.index);
+      return;
+    }
+    const slotGap = this.lastSlot < 0 ? 1 : slot - this.lastSlot;
+    this.lastTime = t;
+    this.lastSlot = slot;
+    this.lastFrameIndex = frame.index;
+    this.counters.frames++;
+    this.counters.centroids += frame.count;
+    this.processFrame(frame, slot, slotGap);
+  }
+
+  /** Feed one temperature reading from the sample's sensor log (°C at time t s). */
+  pushTemperature(t: number, celsius: number): void {
+    if (!Number.isFinite(t) || !Number.isFinite(celsius)) return;
+    this.temperatureSum += celsius;
+    this.temperatureCount++;
+    this.latestTemperature = celsius;
+    if (this.temperatureLog.length < 100_000) this.temperatureLog.push({ t, celsius });
+    this.context.reportedTemperature = celsius;
+  }
+
+  /** Record an operator's tag (a point mark, or a segment with an end). */
+  pushTag(tag: Tag): void {
+    this.tags.push({ ...tag });
+  }
+
+  /** Tags recorded so far. */
+  tagList(): readonly Tag[] {
+    return this.tags;
+  }
+
+  /** End of input: ends every live track and closes open alerts. */
+  finish(): void {
+    if (this.tracks) {
+      const ended = this.tracks.endAll();
+      this.foldEnded(ended);
+    }
+    this.alertChanges = this.alertEngine.closeAll(this.lastTime);
+  }
+
+  /** The current report (CONTRACTS §3). O(live tracks × lags + blocks). */
+  report(extra: Partial<ReportInput> = {}): Report {
+    return buildReport({
+      options: this.options,
+      layout: this.layout,
+      lags: this.lags,
+      blur: this.blur,
+      tracks: this.tracks,
+      blocks: this.blocks,
+      counters: this.counters,
+      commonMode: this.commonMode,
+      commonModeFrames: this.commonModeFrames,
+      commonModeSlots: this.commonModeSlots,
+      inverseCount: this.inverseCountSteps > 0 ? this.inverseCountFrames / this.inverseCountSteps : 0,
+      nonGaussianSums: this.nonGaussianSums,
+      detectors: this.detectors,
+      alerts: this.alertEngine.alerts(),
+      tags: this.tags,
+      temperatureMean: this.temperatureCount > 0 ? this.temperatureSum / this.temperatureCount : this.options.temperature,
+      temperatureLog: this.temperatureLog,
+      dims: this.dims,
+      firstTime: this.startTime,
+      lastTime: Number.isFinite(this.lastTime) ? this.lastTime : undefined,
+      ...extra,
+    });
+  }
+
+  /** Current detector context (estimates handed to detectors). */
+  currentContext(): Readonly<DetectorContext> {
+    return this.context;
+  }
+
+  /** Global running statistics record and its layout (for context refreshers). */
+  globalStatistics(): { layout: StatsLayout | undefined; stats: Float64Array; driftVelocity: [number, number, number] } {
+    return { layout: this.layout, stats: this.globalStats, driftVelocity: this.driftVelocity() };
+  }
+
+  /** Run-so-far common-mode drift velocity per axis, µm/s (Σm / (slots·Δt)). */
+  driftVelocity(): [number, number, number] {
+    const duration = this.commonModeSlots * this.options.frameInterval;
+    if (!(duration > 0)) return [0, 0, 0];
+    return [this.commonMode[0] / duration, this.commonMode[7] / duration, this.commonMode[14] / duration];
+  }
+
+  private initialise(frame: Frame): void {
+    const o = this.options;
+    this.dims = o.dims ?? (frame.z ? 3 : 2);
+    this.layout = statsLayout(this.dims, this.lags.length);
+    this.tracks = new TrackTable(this.layout, this.ringSize, o.groups, o.maxTrackTable);
+    this.blocks = new TimeBlocks(this.layout, o.blockSeconds, o.maxBlocks);
+    this.globalStats = new Float64Array(this.layout.width);
+    this.driftRing = new Float64Array(this.ringSize * 3);
+    this.driftRingSlot = new Int32Array(this.ringSize).fill(-1);
+    this.firstT = frame.t;
+    this.ensureScratch(Math.max(64, frame.count));
+  }
+
+  private ensureScratch(count: number): void {
+    if (count <= this.scratchCapacity) return;
+    let capacity = Math.max(64, this.scratchCapacity);
+    while (capacity < count) capacity *= 2;
+    this.scratchCapacity = capacity;
+    this.ids = new Uint32Array(capacity);
+    this.trackIndex = new Int32Array(capacity);
+    this.stepZ = new Float64Array(capacity);
+    this.gapDx = new Float64Array(capacity * 3);
+    this.steps = {
+      t: 0,
+      frameIndex: 0,
+      slot: 0,
+      slotGap: 1,
+      frameInterval: this.options.frameInterval,
+      exposure: this.options.exposure,
+      count: 0,
+      trackId: new Uint32Array(capacity),
+      x: new Float64Array(capacity),
+      y: new Float64Array(capacity),
+      intensity: undefined,
+      trackLength: new Uint32Array(capacity),
+      stepCount: 0,
+      stepParticle: new Int32Array(capacity),
+      dx: new Float64Array(capacity),
+      dy: new Float64Array(capacity),
+      endedCount: 0,
+      endedTrackId: new Uint32Array(capacity),
+      endedLength: new Uint32Array(capacity),
+      endedX: new Float64Array(capacity),
+      endedY: new Float64Array(capacity),
+      field: this.fieldBox,
+    };
+    this.intensityScratch = new Float64Array(capacity);
+  }
+
+  private intensityScratch: Float64Array = new Float64Array(0);
+
+  private linkerFor(): Linker {
+    if (!this.linkerInstance) {
+      this.linkerInstance = new Linker({
+        maxDisplacement: this.lazyLinker,
+        initialMaxDisplacement: this.options.initialMaxDisplacement,
+        maxGapFrames: this.options.maxGapFrames,
+      });
+    }
+    return this.linkerInstance;
+  }
+
+  private processFrame(frame: Frame, slot: number, slotGap: number): void {
+    const o = this.options;
+    const layout = this.layout as StatsLayout;
+    const tracks = this.tracks as TrackTable;
+    const dims = this.dims;
+    const count = frame.count;
+    this.ensureScratch(count);
+    const steps = this.steps;
+    const ids = this.ids;
+    // 1. Track ids: given by the rig, or made by linking.
+    if (frame.id) {
+      ids.set(frame.id.subarray(0, count));
+    } else {
+      const velocity = this.driftVelocity();
+      this.linkerFor().link(frame.x, frame.y, count, slot, {
+        diffusion: this.context.diffusion,
+        localizationVariance:
+          this.context.localizationError !== undefined ? this.context.localizationError ** 2 : undefined,
+        frameInterval: o.frameInterval,
+        driftVelocity: [velocity[0], velocity[1]],
+      }, ids);
+    }
+    // 2. Present particles and their one-slot steps.
+    let present = 0;
+    let stepCount = 0;
+    let gapCount = 0;
+    const box = this.fieldBox;
+    const z = dims === 3 ? frame.z : undefined;
+    for (let p = 0; p < count; p++) {
+      const x = frame.x[p];
+      const y = frame.y[p];
+      const zp = z ? z[p] : 0;
+      if (!Number.isFinite(x) || !Number.isFinite(y) || !Number.isFinite(zp)) {
+        this.counters.nonFinite++;
+        continue;
+      }
+      const index = tracks.lookupOrCreate(ids[p], slot, frame.t);
+      if (tracks.lastSlot[index] === slot) {
+        this.counters.duplicateIds++;
+        continue;
+      }
+      this.trackIndex[present] = index;
+      steps.trackId[present] = ids[p];
+      steps.x[present] = x;
+      steps.y[present] = y;
+      this.stepZ[present] = zp;
+      if (frame.intensity) this.intensityScratch[present] = frame.intensity[p];
+      if (x < box.xMin) box.xMin = x;
+      if (x > box.xMax) box.xMax = x;
+      if (y < box.yMin) box.yMin = y;
+      if (y > box.yMax) box.yMax = y;
+      const last = tracks.lastSlot[index];
+      if (last === slot - 1) {
+        const ring = tracks.ringBase(index, last, this.ringSize);
+        steps.stepParticle[stepCount] = present;
+        steps.dx[stepCount] = x - tracks.ring[ring];
+        steps.dy[stepCount] = y - tracks.ring[ring + 1];
+        stepCount++;
+      } else if (last >= 0 && slot - last <= o.maxGapFrames + 1) {
+        const ring = tracks.ringBase(index, last, this.ringSize);
+        const base = gapCount * 3;
+        this.gapDx[base] = (x - tracks.ring[ring]) / (slot - last);
+        this.gapDx[base + 1] = (y - tracks.ring[ring + 1]) / (slot - last);
+        this.gapDx[base + 2] = slot - last;
+        gapCount++;
+      }
+      present++;
+    }
+    this.gapCount = gapCount;
+    // 3. Common-mode step m(t) and its cumulative drift X(slot).
+    const mean = this.frameMean;
+    mean[0] = 0;
+    mean[1] = 0;
+    mean[2] = 0;
+    if (stepCount > 0) {
+      let zSum = 0;
+      for (let s = 0; s < stepCount; s++) {
+        mean[0] += steps.dx[s];
+        mean[1] += steps.dy[s];
+        if (dims === 3) {
+          const p = steps.stepParticle[s];
+          const ring = tracks.ringBase(this.trackIndex[p], slot - 1, this.ringSize);
+          zSum += this.stepZ[p] - tracks.ring[ring + 2];
+        }
+      }
+      mean[0] /= stepCount;
+      mean[1] /= stepCount;
+      mean[2] = zSum / stepCount;
+      if (stepCount >= 2) this.accumulateCommonMode(stepCount, mean, slot);
+      this.commonModeSlots += 1;
+      // Frames where the gap steps (after a drop) cover more slots are added by slot count below.
+    } else if (gapCount > 0) {
+      // After dropped frames nobody has a one-slot step: use the mean per-slot displacement.
+      for (let g = 0; g < gapCount; g++) {
+        mean[0] += this.gapDx[g * 3];
+        mean[1] += this.gapDx[g * 3 + 1];
+      }
+      mean[0] /= gapCount;
+      mean[1] /= gapCount;
+    }
+    const drift = this.cumulativeDrift;
+    const bridged = stepCount > 0 ? 1 : slotGap;
+    drift[0] += mean[0] * bridged;
+    drift[1] += mean[1] * bridged;
+    drift[2] += mean[2] * bridged;
+    if (stepCount === 0 && gapCount > 0) {
+      this.commonMode[0] += mean[0] * slotGap;
+      this.commonMode[7] += mean[1] * slotGap;
+      this.commonModeSlots += slotGap;
+    }
+    const ringSlotIndex = slot % this.ringSize;
+    this.driftRing[ringSlotIndex * 3] = drift[0];
+    this.driftRing[ringSlotIndex * 3 + 1] = drift[1];
+    this.driftRing[ringSlotIndex * 3 + 2] = drift[2];
+    this.driftRingSlot[ringSlotIndex] = slot;
+    // 4. Per particle: ring, CVE sums, lag sums.
+    const block = (this.blocks as TimeBlocks).blockFor(slot * o.frameInterval, frame.t);
+    const blockStats = (this.blocks as TimeBlocks).stats;
+    const blockOffset = block * layout.width;
+    const global = this.globalStats;
+    const lags = this.lags;
+    const lagCount = lags.length;
+    const ringSize = this.ringSize;
+    const trackStats = tracks.stats;
+    const ring = tracks.ring;
+    const ringSlot = tracks.ringSlot;
+    const previousOffset = layout.previousOffset;
+    const lagStride = 1 + 3 * dims;
+    const position = this.positionScratch;
+    const nonGaussian = this.nonGaussianSums;
+    let stepCursor = 0;
+    for (let p = 0; p < present; p++) {
+      const index = this.trackIndex[p];
+      const base = index * layout.width;
+      position[0] = steps.x[p];
+      position[1] = steps.y[p];
+      position[2] = this.stepZ[p];
+      const lastSlot = tracks.lastSlot[index];
+      // One-slot step: CVE sums (raw and per-frame corrected).
+      if (lastSlot === slot - 1) {
+        const lastRing = tracks.ringBase(index, lastSlot, ringSize);
+        const hasPair = trackStats[base + previousOffset + 2 * dims] === slot - 1;
+        for (let a = 0; a < dims; a++) {
+          const d = position[a] - ring[lastRing + a];
+          const dc = d - mean[a];
+          const c = cveOffset(a);
+          const previous = trackStats[base + previousOffset + a];
+          const previousCorrected = trackStats[base + previousOffset + dims + a];
+          addCve(trackStats, base + c, d, dc, hasPair, previous, previousCorrected);
+          addCve(global, c, d, dc, hasPair, previous, previousCorrected);
+          addCve(blockStats, blockOffset + c, d, dc, hasPair, previous, previousCorrected);
+          trackStats[base + previousOffset + a] = d;
+          trackStats[base + previousOffset + dims + a] = dc;
+        }
+        trackStats[base + previousOffset + 2 * dims] = slot;
+        stepCursor++;
+      }
+      // Lag sums over the ring (time-averaged MSD), raw and per-frame corrected.
+      for (let l = 0; l < lagCount; l++) {
+        const n = lags[l];
+        const from = slot - n;
+        if (from < 0) break;
+        const fromIndex = from % ringSize;
+        if (ringSlot[index * ringSize + fromIndex] !== from) continue;
+        if (this.driftRingSlot[fromIndex] !== from) continue;
+        const fromRing = (index * ringSize + fromIndex) * 3;
+        const lagBase = base + layout.lagBase + l * lagStride;
+        const blockLagBase = blockOffset + layout.lagBase + l * lagStride;
+        const globalLagBase = layout.lagBase + l * lagStride;
+        trackStats[lagBase] += 1;
+        blockStats[blockLagBase] += 1;
+        global[globalLagBase] += 1;
+        let r2 = 0;
+        for (let a = 0; a < dims; a++) {
+          const d = position[a] - ring[fromRing + a];
+          const dc = d - (drift[a] - this.driftRing[fromIndex * 3 + a]);
+          const at = 1 + 3 * a;
+          trackStats[lagBase + at] += d;
+          trackStats[lagBase + at + 1] += d * d;
+          trackStats[lagBase + at + 2] += dc * dc;
+          blockStats[blockLagBase + at] += d;
+          blockStats[blockLagBase + at + 1] += d * d;
+          blockStats[blockLagBase + at + 2] += dc * dc;
+          global[globalLagBase + at] += d;
+          global[globalLagBase + at + 1] += d * d;
+          global[globalLagBase + at + 2] += dc * dc;
+          r2 += dc * dc;
+        }
+        if (n === 1) {
+          nonGaussian[0] += r2;
+          nonGaussian[1] += r2 * r2;
+          nonGaussian[2] += 1;
+        }
+      }
+      // Store the position in the ring and update the track's bookkeeping.
+      const here = (index * ringSize + (slot % ringSize)) * 3;
+      ring[here] = position[0];
+      ring[here + 1] = position[1];
+      ring[here + 2] = position[2];
+      ringSlot[index * ringSize + (slot % ringSize)] = slot;
+      tracks.touch(index, slot, frame.t);
+      steps.trackLength[p] = tracks.length[index];
+    }
+    void stepCursor;
+    // 5. Tracks unseen for more than maxGapFrames end now.
+    const ended = tracks.endStale(slot, o.maxGapFrames);
+    this.foldEnded(ended);
+    // 6. Detectors and alerts.
+    steps.t = frame.t;
+    steps.frameIndex = frame.index;
+    steps.slot = slot;
+    steps.slotGap = slotGap;
+    steps.count = present;
+    steps.stepCount = stepCount;
+    steps.intensity = frame.intensity ? this.intensityScratch : undefined;
+    this.framesSinceContext++;
+    if (this.framesSinceContext >= 10 || this.context.diffusion === undefined) {
+      this.framesSinceContext = 0;
+      if (this.contextRefresher) Object.assign(this.context, this.contextRefresher(this));
+    }
+    if (this.detectors.length > 0) {
+      this.conditions.length = 0;
+      for (const detector of this.detectors) {
+        const raised = detector.push(steps, this.context);
+        for (const condition of raised) this.conditions.push(condition);
+      }
+      if (this.conditions.length > 0) this.alertChanges.push(...this.alertEngine.push(this.conditions));
+    }
+    const closed = this.alertEngine.tick(frame.t);
+    if (closed.length > 0) this.alertChanges.push(...closed);
+  }
+
+  private frameMean = new Float64Array(3);
+  private positionScratch = new Float64Array(3);
+
+  private accumulateCommonMode(stepCount: number, mean: Float64Array, slot: number): void {
+    const steps = this.steps;
+    const cm = this.commonMode;
+    // within-frame sums of squares per axis, for s_t (self-calibrating SE) and the pooled variance
+    let ssx = 0;
+    let ssy = 0;
+    for (let s = 0; s < stepCount; s++) {
+      const ex = steps.dx[s] - mean[0];
+      const ey = steps.dy[s] - mean[1];
+      ssx += ex * ex;
+      ssy += ey * ey;
+    }
+    const n = stepCount;
+    const axes: [number, number, number][] = [
+      [0, mean[0], ssx],
+      [7, mean[1], ssy],
+    ];
+    for (const [offset, m, ss] of axes) {
+      const s2 = ss / (n - 1);
+      cm[offset] += m; // Σ m
+      cm[offset + 1] += s2 / n; // Σ s²/N (variance of v̂'s numerator)
+      cm[offset + 2] += n * m * m; // Σ N m²
+      cm[offset + 3] += n * m; // Σ N m
+      cm[offset + 4] += n; // Σ N
+      cm[offset + 5] += ss; // within-frame SS
+      cm[offset + 6] += n - 1; // its degrees of freedom
+    }
+    this.commonModeFrames++;
+    this.inverseCountFrames += 1;
+    this.inverseCountSteps += n;
+    void slot;
+  }
+
+  private foldEnded(ended: readonly EndedTrack[]): void {
+    const steps = this.steps;
+    let e = 0;
+    for (const track of ended) {
+      if (steps && e < steps.endedTrackId.length) {
+        steps.endedTrackId[e] = track.id;
+        steps.endedLength[e] = track.length;
+        steps.endedX[e] = track.lastX;
+        steps.endedY[e] = track.lastY;
+        e++;
+      }
+    }
+    if (steps) steps.endedCount = e;
+  }
+
+  private noteBackwards(t: number, frameIndex: number): void {
+    for (const detector of this.detectors) {
+      const candidate = detector as unknown as { noteBackwards?: (t: number, index: number) => Condition[] | void };
+      if (typeof candidate.noteBackwards === 'function') {
+        const raised = candidate.noteBackwards(t, frameIndex);
+        if (raised && raised.length > 0) this.alertChanges.push(...this.alertEngine.push(raised));
+      }
+    }
+  }
+
+  private noteDuplicate(t: number, frameIndex: number): void {
+    for (const detector of this.detectors) {
+      const candidate = detector as unknown as { noteDuplicate?: (t: number, index: number) => Condition[] | void };
+      if (typeof candidate.noteDuplicate === 'function') {
+        const raised = candidate.noteDuplicate(t, frameIndex);
+        if (raised && raised.length > 0) this.alertChanges.push(...this.alertEngine.push(raised));
+      }
+    }
+  }
+
+  /** @internal for tests: add a statistics record into another. */
+  static addStats = addStats;
+}
+
+/**
+ * Adds one step to a covariance-estimator block at `offset`: raw step d, corrected step dc, and
+ * (when the previous step of the same track was one slot earlier) the adjacent-pair products.
+ */
+function addCve(
+  target: Float64Array,
+  offset: number,
+  d: number,
+  dc: number,
+  hasPair: boolean,
+  previous: number,
+  previousCorrected: number,
+): void {
+  target[offset + CVE_STEPS] += 1;
+  target[offset + CVE_SUM] += d;
+  target[offset + CVE_SUM_SQUARES] += d * d;
+  target[offset + CVE_SUM_SQUARES_CORRECTED] += dc * dc;
+  if (hasPair) {
+    target[offset + CVE_PAIRS] += 1;
+    target[offset + CVE_SUM_PRODUCTS] += d * previous;
+    target[offset + CVE_SUM_PAIR_TERMS] += d + previous;
+    target[offset + CVE_SUM_PRODUCTS_CORRECTED] += dc * previousCorrected;
+  }
+}
+
+export { lagOffset };

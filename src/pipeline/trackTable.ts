@@ -1,0 +1,230 @@
+import { addStats, cveOffset, CVE_WIDTH, type StatsLayout } from './statsLayout.js';
+
+/** lastSlot of a track with no position yet (far below any real slot, so no step or lag matches). */
+export const NO_SLOT = -1_000_000_000;
+
+/** A track that has ended, as reported to detectors and kept in the per-track table. */
+export interface EndedTrack {
+  id: number;
+  /** Positions in the track. */
+  length: number;
+  /** First and last time, s. */
+  start: number;
+  end: number;
+  lastX: number;
+  lastY: number;
+  /** The track's covariance-estimator sums (CVE_WIDTH values per axis). */
+  cve: Float64Array;
+}
+
+/**
+ * The live tracks, in struct-of-arrays form: per track one statistics record (see statsLayout),
+ * a ring of its last maxLag + 1 positions (3 values per slot, indexed by slot modulo the ring
+ * size), and its bookkeeping. Storage grows by doubling and ended tracks' rows are reused.
+ * Ended tracks are folded into per-group totals (for the ensemble and the jackknife) and kept in
+ * a bounded table (longest tracks win when it is full).
+ *
+ * Memory per live track: 8·(width + 3·ringSize) + 4·ringSize + ~40 bytes
+ * (≈ 4.2 KiB at 2 axes, 16 lags, maxLag 128).
+ */
+export class TrackTable {
+  readonly layout: StatsLayout;
+  readonly ringSize: number;
+  readonly groups: number;
+  readonly maxTable: number;
+  capacity = 0;
+  stats: Float64Array = new Float64Array(0);
+  ring: Float64Array = new Float64Array(0);
+  ringSlot: Int32Array = new Int32Array(0);
+  lastSlot: Int32Array = new Int32Array(0);
+  length: Uint32Array = new Uint32Array(0);
+  id: Uint32Array = new Uint32Array(0);
+  firstT: Float64Array = new Float64Array(0);
+  lastT: Float64Array = new Float64Array(0);
+  group: Uint16Array = new Uint16Array(0);
+  /** Per-group totals of ended tracks (groups × width). */
+  readonly closed: Float64Array;
+  /** Ended tracks kept for the report. */
+  readonly table: EndedTrack[] = [];
+  /** Ended tracks not kept in the table. */
+  omitted = 0;
+  /** Of those, tracks that had at least one step. */
+  omittedWithSteps = 0;
+  /** Tracks ever started. */
+  started = 0;
+  private readonly live = new Map<number, number>();
+  private readonly free: number[] = [];
+  private shortestInTable = 0;
+
+  constructor(layout: StatsLayout, ringSize: number, groups: number, maxTable: number) {
+    this.layout = layout;
+    this.ringSize = ringSize;
+    this.groups = groups;
+    this.maxTable = maxTable;
+    this.closed = new Float64Array(groups * layout.width);
+    this.grow(256);
+  }
+
+  /** Number of live tracks. */
+  liveCount(): number {
+    return this.live.size;
+  }
+
+  /** Iterates over the row indices of live tracks. */
+  liveRows(): IterableIterator<number> {
+    return this.live.values();
+  }
+
+  /** Row of track `id`, creating a new track (first seen at `slot`, time `t`) if needed. O(1) amortised. */
+  lookupOrCreate(id: number, slot: number, t: number): number {
+    const known = this.live.get(id);
+    if (known !== undefined) return known;
+    if (this.free.length === 0) this.grow(this.capacity * 2);
+    const index = this.free.pop() as number;
+    const width = this.layout.width;
+    this.stats.fill(0, index * width, (index + 1) * width);
+    // no previous step yet
+    this.stats[index * width + this.layout.previousOffset + 2 * this.layout.dims] = -2;
+    this.ringSlot.fill(-1, index * this.ringSize, (index + 1) * this.ringSize);
+    this.lastSlot[index] = NO_SLOT;
+    this.length[index] = 0;
+    this.id[index] = id;
+    this.firstT[index] = t;
+    this.lastT[index] = t;
+    this.group[index] = this.started % this.groups;
+    this.started++;
+    this.live.set(id, index);
+    void slot;
+    return index;
+  }
+
+  /** Offset in `ring` of the position stored for `slot` of track row `index`. */
+  ringBase(index: number, slot: number, ringSize: number): number {
+    return (index * ringSize + (slot % ringSize)) * 3;
+  }
+
+  /** Records that track row `index` has a position at `slot`, time `t`. */
+  touch(index: number, slot: number, t: number): void {
+    this.lastSlot[index] = slot;
+    this.length[index]++;
+    this.lastT[index] = t;
+  }
+
+  /** Ends the tracks not seen for more than `maxGap` slots before `slot`. O(live tracks). */
+  endStale(slot: number, maxGap: number): EndedTrack[] {
+    const ended: EndedTrack[] = [];
+    for (const [id, index] of this.live) {
+      if (slot - this.lastSlot[index] > maxGap) {
+        ended.push(this.end(id, index));
+      }
+    }
+    return ended;
+  }
+
+  /** Ends every live track (end of the run). */
+  endAll(): EndedTrack[] {
+    const ended: EndedTrack[] = [];
+    for (const [id, index] of this.live) ended.push(this.end(id, index));
+    return ended;
+  }
+
+  /**
+   * Per-group totals over ended and live tracks: a (groups × width) array.
+   * O(live tracks × width).
+   */
+  groupTotals(): Float64Array {
+    const totals = Float64Array.from(this.closed);
+    const width = this.layout.width;
+    for (const index of this.live.values()) {
+      addStats(this.layout, totals, this.group[index] * width, this.stats, index * width);
+    }
+    return totals;
+  }
+
+  /** Snapshot of a live track as an EndedTrack-like row (for the per-track table). */
+  liveRow(index: number): EndedTrack {
+    return this.snapshot(index);
+  }
+
+  private end(id: number, index: number): EndedTrack {
+    const row = this.snapshot(index);
+    addStats(this.layout, this.closed, this.group[index] * this.layout.width, this.stats, index * this.layout.width);
+    this.keep(row);
+    this.live.delete(id);
+    this.free.push(index);
+    return row;
+  }
+
+  private snapshot(index: number): EndedTrack {
+    const width = this.layout.width;
+    const dims = this.layout.dims;
+    const lastRing = this.ringBase(index, Math.max(0, this.lastSlot[index]), this.ringSize);
+    return {
+      id: this.id[index],
+      length: this.length[index],
+      start: this.firstT[index],
+      end: this.lastT[index],
+      lastX: this.ring[lastRing],
+      lastY: this.ring[lastRing + 1],
+      cve: this.stats.slice(index * width + cveOffset(0), index * width + cveOffset(0) + CVE_WIDTH * dims),
+    };
+  }
+
+  private keep(row: EndedTrack): void {
+    if (row.length < 2) {
+      this.omitted++;
+      return;
+    }
+    if (this.table.length < this.maxTable) {
+      this.table.push(row);
+      if (this.table.length === this.maxTable) this.shortestInTable = this.findShortest();
+      return;
+    }
+    this.omitted++;
+    this.omittedWithSteps++;
+    if (row.length <= this.table[this.shortestInTable].length) return;
+    this.table[this.shortestInTable] = row;
+    this.shortestInTable = this.findShortest();
+  }
+
+  private findShortest(): number {
+    let best = 0;
+    for (let i = 1; i < this.table.length; i++) if (this.table[i].length < this.table[best].length) best = i;
+    return best;
+  }
+
+  private grow(capacity: number): void {
+    const old = this.capacity;
+    const width = this.layout.width;
+    const ringSize = this.ringSize;
+    const stats = new Float64Array(capacity * width);
+    stats.set(this.stats);
+    const ring = new Float64Array(capacity * ringSize * 3);
+    ring.set(this.ring);
+    const ringSlot = new Int32Array(capacity * ringSize).fill(-1);
+    ringSlot.set(this.ringSlot);
+    const lastSlot = new Int32Array(capacity);
+    lastSlot.set(this.lastSlot);
+    const length = new Uint32Array(capacity);
+    length.set(this.length);
+    const id = new Uint32Array(capacity);
+    id.set(this.id);
+    const firstT = new Float64Array(capacity);
+    firstT.set(this.firstT);
+    const lastT = new Float64Array(capacity);
+    lastT.set(this.lastT);
+    const group = new Uint16Array(capacity);
+    group.set(this.group);
+    this.stats = stats;
+    this.ring = ring;
+    this.ringSlot = ringSlot;
+    this.lastSlot = lastSlot;
+    this.length = length;
+    this.id = id;
+    this.firstT = firstT;
+    this.lastT = lastT;
+    this.group = group;
+    for (let i = capacity - 1; i >= old; i--) this.free.push(i);
+    this.capacity = capacity;
+  }
+}

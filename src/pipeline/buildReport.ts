@@ -735,11 +735,7 @@ function sumGroups(layout: StatsLayout, totals: Float64Array, groups: number): F
 }
 
 function countTracksWithSteps(tracks: TrackTable): number {
-  let n = 0;
-  for (const row of tracks.table) if (row.cve[CVE_STEPS] > 0) n++;
-  n += tracks.omittedWithSteps;
-  for (const index of tracks.liveRows()) if (tracks.stats[index * tracks.layout.width + CVE_STEPS] > 0) n++;
-  return n;
+  return tracks.tracksWithSteps();
 }
 
 function emptyReport(

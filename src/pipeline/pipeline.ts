@@ -270,6 +270,20 @@ export class Pipeline {
     });
   }
 
+  /**
+   * Tell the pipeline that input at time `t` (s) was refused because time went backwards (a reader
+   * that rejects such rows itself calls this, so the run still gets its `timing` alert).
+   */
+  rejectBackwards(t: number, where: number): void {
+    this.counters.backwardsFrames++;
+    this.noteBackwards(t, where);
+  }
+
+  /** Number of tracks (live and ended) that made at least one step. */
+  tracksWithSteps(): number {
+    return this.tracks ? this.tracks.tracksWithSteps() : 0;
+  }
+
   /** Current detector context (estimates handed to detectors). */
   currentContext(): Readonly<DetectorContext> {
     return this.context;
@@ -633,12 +647,32 @@ export class Pipeline {
   }
 
   private noteBackwards(t: number, frameIndex: number): void {
+    let handled = false;
     for (const detector of this.detectors) {
       const candidate = detector as unknown as { noteBackwards?: (t: number, index: number) => Condition[] | void };
       if (typeof candidate.noteBackwards === 'function') {
         const raised = candidate.noteBackwards(t, frameIndex);
+        handled = true;
         if (raised && raised.length > 0) this.alertChanges.push(...this.alertEngine.push(raised));
       }
+    }
+    if (!handled) {
+      // Without a timing detector the pipeline still says so: time going backwards is an error of
+      // the rig's clock or of the file's order (CONTRACTS §2).
+      this.alertChanges.push(
+        ...this.alertEngine.push([
+          {
+            key: 'timing:backwards',
+            kind: 'timing',
+            level: 'warn',
+            t,
+            message: `time went backwards at ${t} s (input ${frameIndex}): those rows were refused; check the rig's clock and the file's order`,
+            statistic: { name: 'backwards', value: this.counters.backwardsFrames, threshold: 0 },
+            falseAlarm: {},
+            effect: null,
+          },
+        ]),
+      );
     }
   }
 

@@ -65,6 +65,16 @@ export class TrackTable {
     this.grow(256);
   }
 
+  /** Tracks (ended and live) with at least one step. O(live tracks). */
+  tracksWithSteps(): number {
+    let n = this.endedWithSteps;
+    for (const index of this.live.values()) if (this.stats[index * this.layout.width] > 0) n++;
+    return n;
+  }
+
+  /** Ended tracks that had at least one step. */
+  endedWithSteps = 0;
+
   /** Number of live tracks. */
   liveCount(): number {
     return this.live.size;
@@ -171,6 +181,7 @@ export class TrackTable {
   }
 
   private keep(row: EndedTrack): void {
+    if (row.cve[0] > 0) this.endedWithSteps++;
     if (row.length < 2) {
       this.omitted++;
       return;

@@ -1,0 +1,142 @@
+import { Command, CommanderError, Option } from 'commander';
+import { mkdir } from 'node:fs/promises';
+import { dirname, join } from 'node:path';
+import { scenarios } from '../../src/simulate/scenarios.js';
+import type { SimulationOptions } from '../../src/simulate/simulationOptions.js';
+import { writeSimulation } from '../simulate/writeSimulation.js';
+import { analyzeFile, type AnalyzeFlags } from './analyze.js';
+import { formatReport } from './formatReport.js';
+import { numberOption, UsageError } from './usageError.js';
+
+/** Package version, for `--version`. */
+const VERSION = '0.1.0';
+
+interface Io {
+  stdout: NodeJS.WritableStream;
+  stderr: NodeJS.WriteStream;
+}
+
+/**
+ * The command line (CONTRACTS §1). Returns the exit status: 0 on success, 2 for a usage error or
+ * a file that cannot be read at all (one line `jostle: <message>` on stderr), 1 for anything
+ * unexpected.
+ */
+export async function main(argv: string[], io: Io = { stdout: process.stdout, stderr: process.stderr }): Promise<number> {
+  const program = buildProgram(io);
+  try {
+    await program.parseAsync(argv);
+    return 0;
+  } catch (error) {
+    if (error instanceof CommanderError) {
+      if (error.code === 'commander.helpDisplayed' || error.code === 'commander.version' || error.exitCode === 0) return 0;
+      io.stderr.write(`jostle: ${error.message.replace(/^error: /, '')}\n`);
+      return 2;
+    }
+    if (error instanceof UsageError || isCoded(error)) {
+      io.stderr.write(`jostle: ${(error as Error).message}\n`);
+      return 2;
+    }
+    io.stderr.write(`jostle: unexpected failure: ${(error as Error)?.stack ?? String(error)}\n`);
+    return 1;
+  }
+}
+
+function isCoded(error: unknown): boolean {
+  const code = (error as { code?: unknown })?.code;
+  return typeof code === 'string' && code.startsWith('JOSTLE_E_');
+}
+
+function buildProgram(io: Io): Command {
+  const program = new Command('jostle')
+    .description('live quality monitor for particle-tracking microscopy')
+    .version(VERSION)
+    .exitOverride()
+    .configureOutput({
+      writeOut: (text) => io.stdout.write(text),
+      writeErr: () => undefined,
+    })
+    .showHelpAfterError(false);
+
+  program
+    .command('analyze')
+    .description('run the pipeline offline over a centroid CSV and print the report')
+    .argument('<file>', 'centroid CSV (CONTRACTS §2)')
+    .option('--json', 'print the report as one JSON object on stdout')
+    .option('--pixel-size <um>', 'size of one position unit, µm (default 1)')
+    .option('--frame-interval <s>', 'frame interval, s (needed without a t column; t wins)')
+    .option('--exposure <s>', 'camera exposure per frame, s (default: the frame interval)')
+    .option('--radius <um>', 'nominal particle radius, µm (a 1 µm bead is 0.5); enables Stokes-Einstein')
+    .option('--radius-sd <um>', 'standard uncertainty of the radius, µm (default 2 % of the radius)')
+    .option('--height <um>', 'particle centre above the coverslip, µm (Faxén wall correction)')
+    .option('--medium <m>', 'water, glycerol-water:<mass fraction>, or viscosity:<mPa·s>', 'water')
+    .option('--temperature <celsius>', 'reported sample temperature, °C')
+    .option('--temperature-log <csv>', 'sensor log with columns t,celsius (overrides --temperature)')
+    .option('--tags <csv>', 'tags label,start,end,note: segments of the report')
+    .option('--config <file>', 'JSON settings (detector thresholds and more); flags win')
+    .option('--no-progress', 'no progress line on stderr')
+    .action(async (file: string, flags: AnalyzeFlags) => {
+      const report = await analyzeFile(file, flags, io.stderr);
+      io.stdout.write(flags.json ? `${JSON.stringify(report)}\n` : formatReport(report));
+    });
+
+  program
+    .command('simulate')
+    .description('write a physically simulated run (centroid CSV, truth JSON, temperature log, tags)')
+    .argument('[scenario]', `named scenario: ${Object.keys(scenarios).join(', ')}`, 'clean')
+    .option('--out <csv>', 'centroid CSV to write', 'jostle-sim.csv')
+    .option('--truth <json>', 'truth JSON to write (default: beside the CSV, .truth.json)')
+    .option('--temperature-log <csv>', 'temperature log CSV to write (default: beside the CSV, .temperature.csv)')
+    .option('--tags <csv>', 'tags CSV to write when the scenario has tags (default: beside the CSV, .tags.csv)')
+    .option('--seed <n>', 'random seed (default: the scenario\'s)')
+    .option('--frames <n>', 'number of frames (default: the scenario\'s)')
+    .option('--particles <n>', 'mean number of particles in the field (default: the scenario\'s)')
+    .option('--no-ids', 'write no track ids (the analysis must link)')
+    .addOption(new Option('--list', 'list the scenarios and exit'))
+    .action(async (name: string, flags: SimulateFlags) => {
+      if (flags.list) {
+        for (const [key, value] of Object.entries(scenarios)) {
+          io.stdout.write(`${key}\t${value.frames} frames\t${(value as { description?: string }).description ?? ''}\n`);
+        }
+        return;
+      }
+      const summary = await simulateToFiles(name, flags);
+      io.stdout.write(`${summary.rows} rows in ${summary.frames} frames written to ${summary.csv} (truth: ${summary.truthPath})\n`);
+    });
+
+  return program;
+}
+
+interface SimulateFlags {
+  out: string;
+  truth?: string;
+  temperatureLog?: string;
+  tags?: string;
+  seed?: string;
+  frames?: string;
+  particles?: string;
+  ids: boolean;
+  list?: boolean;
+}
+
+async function simulateToFiles(name: string, flags: SimulateFlags) {
+  const scenario = scenarios[name];
+  if (!scenario) throw new UsageError(`unknown scenario '${name}': choose one of ${Object.keys(scenarios).join(', ')}`);
+  const integer = (n: number) => Number.isInteger(n) && n >= 0;
+  const options: SimulationOptions = {
+    ...scenario,
+    ...(flags.seed !== undefined ? { seed: numberOption('--seed', flags.seed, integer) as number } : {}),
+    ...(flags.frames !== undefined ? { frames: numberOption('--frames', flags.frames, (n) => integer(n) && n > 0) as number } : {}),
+    ...(flags.particles !== undefined ? { particles: numberOption('--particles', flags.particles, (n) => n > 0) as number } : {}),
+    ...(flags.ids === false ? { ids: false } : {}),
+  };
+  const base = flags.out.replace(/\.csv$/i, '');
+  const truthPath = flags.truth ?? `${base}.truth.json`;
+  await mkdir(dirname(join(process.cwd(), flags.out)), { recursive: true });
+  const summary = await writeSimulation(options, {
+    csvPath: flags.out,
+    truthPath,
+    temperatureLogPath: flags.temperatureLog ?? `${base}.temperature.csv`,
+    tagsPath: flags.tags ?? `${base}.tags.csv`,
+  });
+  return { ...summary, csv: flags.out, truthPath };
+}

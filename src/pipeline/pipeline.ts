@@ -400,10 +400,11 @@ export class Pipeline {
         continue;
       }
       const index = tracks.lookupOrCreate(ids[p], slot, frame.t);
-      if (tracks.lastSlot[index] === slot) {
+      if (tracks.mark[index] === slot) {
         this.counters.duplicateIds++;
         continue;
       }
+      tracks.mark[index] = slot;
       this.trackIndex[present] = index;
       steps.trackId[present] = ids[p];
       steps.x[present] = x;

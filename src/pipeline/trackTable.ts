@@ -37,6 +37,8 @@ export class TrackTable {
   ring: Float64Array = new Float64Array(0);
   ringSlot: Int32Array = new Int32Array(0);
   lastSlot: Int32Array = new Int32Array(0);
+  /** Slot of the frame being gathered in which the track was already seen (duplicate-id check). */
+  mark: Int32Array = new Int32Array(0);
   length: Uint32Array = new Uint32Array(0);
   id: Uint32Array = new Uint32Array(0);
   firstT: Float64Array = new Float64Array(0);
@@ -97,6 +99,7 @@ export class TrackTable {
     this.stats[index * width + this.layout.previousOffset + 2 * this.layout.dims] = -2;
     this.ringSlot.fill(-1, index * this.ringSize, (index + 1) * this.ringSize);
     this.lastSlot[index] = NO_SLOT;
+    this.mark[index] = NO_SLOT;
     this.length[index] = 0;
     this.id[index] = id;
     this.firstT[index] = t;
@@ -216,6 +219,8 @@ export class TrackTable {
     ringSlot.set(this.ringSlot);
     const lastSlot = new Int32Array(capacity);
     lastSlot.set(this.lastSlot);
+    const mark = new Int32Array(capacity);
+    mark.set(this.mark);
     const length = new Uint32Array(capacity);
     length.set(this.length);
     const id = new Uint32Array(capacity);
@@ -230,6 +235,7 @@ export class TrackTable {
     this.ring = ring;
     this.ringSlot = ringSlot;
     this.lastSlot = lastSlot;
+    this.mark = mark;
     this.length = length;
     this.id = id;
     this.firstT = firstT;

@@ -1,0 +1,178 @@
+import { describe, expect, it } from 'vitest';
+import type { Frame } from '../../src/frame.js';
+import { Pipeline } from '../../src/pipeline/pipeline.js';
+import { brownianFrames } from '../helpers/brownianFrames.js';
+
+function frame(index: number, t: number, x: number[], y: number[], id?: number[]): Frame {
+  return {
+    index,
+    t,
+    count: x.length,
+    x: Float64Array.from(x),
+    y: Float64Array.from(y),
+    ...(id ? { id: Uint32Array.from(id) } : {}),
+  };
+}
+
+function run(frames: Frame[], options: ConstructorParameters<typeof Pipeline>[0]) {
+  const pipeline = new Pipeline(options);
+  for (const f of frames) pipeline.push(f);
+  pipeline.finish();
+  return pipeline.report();
+}
+
+describe('Pipeline', () => {
+  describe('#push', () => {
+    it('gives the time-averaged MSD of a deterministic track: x = [0, 1, 3, 6] → 14/3, 17, 36', () => {
+      // estimators.md §1 check values (exact): lags 1, 2, 3 of the 1-D track [0, 1, 3, 6].
+      const xs = [0, 1, 3, 6];
+      const frames = xs.map((x, i) => frame(i, i, [x], [0], [5]));
+      const report = run(frames, { frameInterval: 1, exposure: 0, driftCorrection: 'none' });
+      expect(report.msd.slice(0, 3).map((p) => p.value)).toEqual([
+        expect.closeTo(14 / 3, 12),
+        expect.closeTo(17, 12),
+        expect.closeTo(36, 12),
+      ]);
+      expect(report.msd.map((p) => p.lag).slice(0, 3)).toEqual([1, 2, 3]);
+      expect(report.msd[0].count).toBe(3);
+    });
+
+    it('recovers D within 1 % and σ and α within their CIs on a long run (20,000 steps per axis pooled)', () => {
+      // D = 0.49 µm²/s is a 1 µm bead in water at 25 °C (estimators.md §5); σ = 20 nm; continuous exposure.
+      const frames = brownianFrames({ seed: 3, particles: 100, frames: 600, frameInterval: 0.033, diffusion: 0.49, sigma: 0.02, exposure: 0.033, subSteps: 10 });
+      const report = run(frames, { frameInterval: 0.033 });
+      const d = report.diffusion.coefficient!;
+      expect(Math.abs(d.value / 0.49 - 1)).toBeLessThan(0.01);
+      expect(d.ci95[0]).toBeLessThan(0.49);
+      expect(d.ci95[1]).toBeGreaterThan(0.49);
+      const sigma = report.diffusion.localizationError!;
+      expect(sigma.ci95[0]).toBeLessThan(0.02);
+      expect(sigma.ci95[1]).toBeGreaterThan(0.02);
+      const alpha = report.diffusion.exponent!;
+      expect(alpha.ci95[0]).toBeLessThan(1);
+      expect(alpha.ci95[1]).toBeGreaterThan(1);
+      expect(report.diffusion.estimator!.name).toBe('cve');
+    });
+
+    it('removes a constant drift (fitted) so D is unbiased, and reports the drift velocity with a CI covering it', () => {
+      const frames = brownianFrames({ seed: 4, particles: 50, frames: 600, frameInterval: 0.033, diffusion: 0.49, drift: [0.5, -0.2] });
+      const report = run(frames, { frameInterval: 0.033, exposure: 0 });
+      expect(report.diffusion.driftCorrection.method).toBe('fitted');
+      const d = report.diffusion.coefficient!;
+      expect(d.ci95[0]).toBeLessThan(0.49);
+      expect(d.ci95[1]).toBeGreaterThan(0.49);
+      const v = report.drift.velocity!;
+      expect(v.ci95[0][0]).toBeLessThan(0.5);
+      expect(v.ci95[0][1]).toBeGreaterThan(0.5);
+      expect(v.ci95[1][0]).toBeLessThan(-0.2);
+      expect(v.ci95[1][1]).toBeGreaterThan(-0.2);
+      // Uncorrected, the CVE is biased by +1.5·v²Δt per axis (estimators.md §10): visibly above the truth.
+      const raw = run(frames, { frameInterval: 0.033, exposure: 0, driftCorrection: 'none' });
+      expect(raw.msd[raw.msd.length - 1].value).toBeGreaterThan(report.msd[report.msd.length - 1].value * 1.2);
+    });
+
+    it('switches to per-frame subtraction when the common mode moves more than a constant drift, and the N/(N−1) factor keeps the MSD within 1 %', () => {
+      // detectors.md §1: per-frame mean subtraction shrinks the MSD by (1 − 1/N); multiply by N/(N−1).
+      const frames = brownianFrames({ seed: 5, particles: 20, frames: 2000, frameInterval: 0.01, diffusion: 0.5, exposure: 0 });
+      // A common-mode sine (stage vibration) of 50 nm at 7 Hz on x.
+      for (const f of frames) for (let i = 0; i < f.count; i++) f.x[i] += 0.05 * Math.sin(2 * Math.PI * 7 * f.t);
+      const report = run(frames, { frameInterval: 0.01, exposure: 0 });
+      expect(report.diffusion.driftCorrection.method).toBe('per-frame');
+      // Free diffusion, no blur: MSD(τ) = 4Dτ in 2-D.
+      for (const point of report.msd.slice(0, 8)) {
+        expect(Math.abs(point.value / (4 * 0.5 * point.lag) - 1)).toBeLessThan(0.01 + 3 * point.se / point.value);
+      }
+      const d = report.diffusion.coefficient!;
+      expect(Math.abs(d.value / 0.5 - 1)).toBeLessThan(0.03);
+    });
+
+    it('refuses a frame whose time goes backwards, counts it and raises a timing alert', () => {
+      const frames = [frame(0, 0, [1], [1], [1]), frame(1, 1, [2], [1], [1]), frame(2, 0.5, [3], [1], [1]), frame(3, 2, [4], [1], [1])];
+      const pipeline = new Pipeline({ frameInterval: 1, exposure: 0 });
+      for (const f of frames) pipeline.push(f);
+      expect(pipeline.counts().backwardsFrames).toBe(1);
+      expect(pipeline.counts().frames).toBe(3);
+      const report = pipeline.report();
+      expect(report.alerts.some((a) => a.kind === 'timing' && a.start === 0.5)).toBe(true);
+    });
+
+    it('skips non-finite centroids and duplicated ids and frames, counting each', () => {
+      const pipeline = new Pipeline({ frameInterval: 1, exposure: 0 });
+      pipeline.push(frame(0, 0, [1, NaN, 2], [1, 1, 2], [1, 2, 1]));
+      pipeline.push(frame(1, 1, [1], [1], [1]));
+      pipeline.push(frame(1, 1, [1], [1], [1]));
+      pipeline.push({ ...frame(2, Infinity, [1], [1], [1]) });
+      const counts = pipeline.counts();
+      expect(counts.nonFinite).toBe(1);
+      expect(counts.duplicateIds).toBe(1);
+      expect(counts.duplicateFrames).toBe(1);
+      expect(counts.rejectedFrames).toBe(1);
+      expect(pipeline.report().input.frames).toBe(2);
+    });
+
+    it('returns no estimates (not zeros) while there is too little data', () => {
+      const report = run([frame(0, 0, [1], [1], [1])], { frameInterval: 1 });
+      expect(report.diffusion.coefficient).toBeNull();
+      expect(report.msd).toEqual([]);
+    });
+  });
+
+  describe('#report', () => {
+    it('does not change the state: reporting midway gives the same final report (incremental equals batch)', () => {
+      const frames = brownianFrames({ seed: 6, particles: 30, frames: 300, frameInterval: 0.05, diffusion: 0.3, sigma: 0.03 });
+      const once = run(frames, { frameInterval: 0.05 });
+      const pipeline = new Pipeline({ frameInterval: 0.05 });
+      frames.forEach((f, i) => {
+        pipeline.push(f);
+        if (i % 37 === 0) pipeline.report();
+      });
+      pipeline.finish();
+      const again = pipeline.report();
+      expect(again.diffusion).toEqual(once.diffusion);
+      expect(again.msd).toEqual(once.msd);
+    });
+
+    it('does not mutate the frames it is given', () => {
+      const frames = brownianFrames({ seed: 7, particles: 5, frames: 20, frameInterval: 0.05, diffusion: 0.3 });
+      const copies = frames.map((f) => ({ x: Float64Array.from(f.x), y: Float64Array.from(f.y) }));
+      run(frames, { frameInterval: 0.05 });
+      frames.forEach((f, i) => {
+        expect(Array.from(f.x)).toEqual(Array.from(copies[i].x));
+        expect(Array.from(f.y)).toEqual(Array.from(copies[i].y));
+      });
+    });
+
+    it('gives D with a CI for each tagged segment and only for segments with an end', () => {
+      const frames = brownianFrames({ seed: 8, particles: 40, frames: 400, frameInterval: 0.05, diffusion: 0.4 });
+      // Double D after t = 10 s by stretching later steps: positions scale about their t = 10 s value.
+      const pipeline = new Pipeline({ frameInterval: 0.05, exposure: 0 });
+      pipeline.pushTag({ label: 'first', start: 0, end: 9.5, note: '' });
+      pipeline.pushTag({ label: 'mark', start: 4, end: null, note: 'bump' });
+      for (const f of frames) pipeline.push(f);
+      pipeline.finish();
+      const report = pipeline.report();
+      expect(report.segments).toHaveLength(1);
+      const segment = report.segments[0];
+      expect(segment.label).toBe('first');
+      expect(segment.diffusion!.ci95[0]).toBeLessThan(0.4);
+      expect(segment.diffusion!.ci95[1]).toBeGreaterThan(0.4);
+      expect(report.tags).toHaveLength(2);
+    });
+
+    it('links unlabelled centroids and gets the same D as with the rig\'s ids (within the CI width)', () => {
+      const settings = { seed: 9, particles: 60, frames: 300, frameInterval: 0.033, diffusion: 0.49, sigma: 0.02, field: 200 };
+      const withIds = run(brownianFrames(settings), { frameInterval: 0.033, exposure: 0 });
+      const linked = run(brownianFrames({ ...settings, withoutIds: true }), { frameInterval: 0.033, exposure: 0 });
+      const d = withIds.diffusion.coefficient!;
+      expect(Math.abs(linked.diffusion.coefficient!.value - d.value)).toBeLessThan((d.ci95[1] - d.ci95[0]) / 4);
+      expect(linked.input.tracks).toBeGreaterThanOrEqual(60);
+      expect(linked.input.tracks).toBeLessThan(70);
+    });
+  });
+
+  it('rejects contradictory options at construction with a message naming them', () => {
+    expect(() => new Pipeline({ frameInterval: 0.01, exposure: 0.02 })).toThrow(/exposure/);
+    expect(() => new Pipeline({ frameInterval: -1 })).toThrow(/frameInterval/);
+    expect(() => new Pipeline({ frameInterval: 0.01, radiusSd: 0.01 })).toThrow(/radiusSd/);
+  });
+});

@@ -65,7 +65,7 @@ export function brownianFrames(settings: BrownianSettings): Frame[] {
       const stepTime = exposure > 0 ? exposure / subSteps : dt;
       const preTime = dt - exposure;
       const sd = Math.sqrt(2 * dOf[i]);
-      if (f > 0 && preTime > 0) {
+      if (f > 0 && exposure > 0 && preTime > 0) {
         px[i] += sd * Math.sqrt(preTime) * random.normal();
         py[i] += sd * Math.sqrt(preTime) * random.normal();
       }

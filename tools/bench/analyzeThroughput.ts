@@ -1,0 +1,45 @@
+// Benchmark: `analyze` throughput in centroids/s for linked (ids given) and unlinked input, on
+// a CSV written by the simulator, against the bare CSV read of the same file as the baseline.
+// Run: npx tsx tools/bench/analyzeThroughput.ts   (a figure, not a test)
+import { mkdtemp, rm } from 'node:fs/promises';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { scenarios } from '../../src/simulate/scenarios.js';
+import { analyzeFile } from '../cli/analyze.js';
+import { readCentroids } from '../io/readCentroids.js';
+import { writeSimulation } from '../simulate/writeSimulation.js';
+import { machineLine, measureRateAsync, table, type BenchFigure } from './harness.js';
+
+export async function analyzeThroughput(runs = 3): Promise<BenchFigure[]> {
+  const folder = await mkdtemp(join(tmpdir(), 'jostle-bench-'));
+  try {
+    const base = { ...scenarios.clean, particles: 400, field: { width: 400, height: 300 }, frames: 1500 };
+    const linked = join(folder, 'linked.csv');
+    const unlinked = join(folder, 'unlinked.csv');
+    const linkedSummary = await writeSimulation(base, { csvPath: linked, truthPath: join(folder, 'l.json') });
+    await writeSimulation({ ...base, ids: false }, { csvPath: unlinked, truthPath: join(folder, 'u.json') });
+    const rows = linkedSummary.rows;
+    const read = await measureRateAsync('CSV read only (baseline)', 'rows/s', async () => {
+      const summary = await readCentroids(linked, {}, () => undefined);
+      return summary.rows;
+    }, runs);
+    const withIds = await measureRateAsync('analyze, ids given', 'centroids/s', async () => {
+      const report = await analyzeFile(linked, { progress: false });
+      return report.input.rows as number;
+    }, runs);
+    const withoutIds = await measureRateAsync('analyze, unlinked (linking on)', 'centroids/s', async () => {
+      const report = await analyzeFile(unlinked, { progress: false });
+      return report.input.rows as number;
+    }, runs);
+    void rows;
+    return [read, withIds, withoutIds];
+  } finally {
+    await rm(folder, { recursive: true, force: true });
+  }
+}
+
+if (import.meta.url === `file://${process.argv[1]}`) {
+  const figures = await analyzeThroughput();
+  console.log(machineLine());
+  console.log(table(figures, figures[0]));
+}

@@ -525,10 +525,12 @@ function exponentEstimate(
   framesPerTrack: number,
   jackknifeDf: number | undefined,
 ): Estimate | null {
-  // Lags up to a quarter of the typical track (Kepten et al. 2015: long lags are noisy) and with
-  // at least 10 % of the first lag's count; at least 3 points.
+  // Lags up to a quarter of the typical track (Kepten et al. 2015: long lags are noisy), at most
+  // the consecutive lags (one decade by default: at longer lags the field of view's edge biases
+  // the MSD low, since only displacements with both ends in view are seen), and with at least
+  // 10 % of the first lag's count; at least 3 points.
   const firstCount = curve.length > 0 ? curve[0].count : 0;
-  const maxLagS = Math.max(4, framesPerTrack / 4) * input.options.frameInterval;
+  const maxLagS = Math.min(input.options.consecutiveLags, Math.max(4, framesPerTrack / 4)) * input.options.frameInterval;
   const use = curve.filter((p) => p.lag <= maxLagS + 1e-12 && p.count >= 0.1 * firstCount && p.se > 0);
   if (use.length < 3) return null;
   const fit = (values: number[]) =>

@@ -91,7 +91,8 @@ export class Pipeline {
   private lastSlot = -1;
   private lastFrameIndex: number | undefined;
   private dims = 2;
-  // Global running totals (one statistics record) so the context can be refreshed cheaply.
+  // Global running totals of the covariance-estimator sums (the lag sums are not kept here: the
+  // report adds the groups up), so the detectors' context can be refreshed cheaply.
   private globalStats: Float64Array = new Float64Array(0);
   // Cumulative common-mode drift X(slot) per axis, in a ring of maxLag + 1 slots.
   private driftRing: Float64Array = new Float64Array(0);
@@ -532,10 +533,8 @@ export class Pipeline {
         const fromRing = (index * ringSize + fromIndex) * 3;
         const lagBase = base + layout.lagBase + l * lagStride;
         const blockLagBase = blockOffset + layout.lagBase + l * lagStride;
-        const globalLagBase = layout.lagBase + l * lagStride;
         trackStats[lagBase] += 1;
         blockStats[blockLagBase] += 1;
-        global[globalLagBase] += 1;
         let r2 = 0;
         for (let a = 0; a < dims; a++) {
           const d = position[a] - ring[fromRing + a];
@@ -547,9 +546,6 @@ export class Pipeline {
           blockStats[blockLagBase + at] += d;
           blockStats[blockLagBase + at + 1] += d * d;
           blockStats[blockLagBase + at + 2] += dc * dc;
-          global[globalLagBase + at] += d;
-          global[globalLagBase + at + 1] += d * d;
-          global[globalLagBase + at + 2] += dc * dc;
           r2 += dc * dc;
         }
         if (n === 1) {

@@ -39,7 +39,7 @@ describe('Pipeline', () => {
 
     it('recovers D within 1 % and σ and α within their CIs on a long run (20,000 steps per axis pooled)', () => {
       // D = 0.49 µm²/s is a 1 µm bead in water at 25 °C (estimators.md §5); σ = 20 nm; continuous exposure.
-      const frames = brownianFrames({ seed: 3, particles: 100, frames: 600, frameInterval: 0.033, diffusion: 0.49, sigma: 0.02, exposure: 0.033, subSteps: 10 });
+      const frames = brownianFrames({ seed: 3, particles: 100, frames: 600, frameInterval: 0.033, diffusion: 0.49, sigma: 0.02, exposure: 0.033, subSteps: 100 });
       const report = run(frames, { frameInterval: 0.033 });
       const d = report.diffusion.coefficient!;
       expect(Math.abs(d.value / 0.49 - 1)).toBeLessThan(0.01);

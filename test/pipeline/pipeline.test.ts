@@ -37,12 +37,12 @@ describe('Pipeline', () => {
       expect(report.msd[0].count).toBe(3);
     });
 
-    it('recovers D within 1 % and σ and α within their CIs on a long run (20,000 steps per axis pooled)', () => {
+    it('recovers D, σ and α within their CIs on a long run (60,000 steps pooled)', () => {
       // D = 0.49 µm²/s is a 1 µm bead in water at 25 °C (estimators.md §5); σ = 20 nm; continuous exposure.
       const frames = brownianFrames({ seed: 3, particles: 100, frames: 600, frameInterval: 0.033, diffusion: 0.49, sigma: 0.02, exposure: 0.033, subSteps: 100 });
       const report = run(frames, { frameInterval: 0.033 });
       const d = report.diffusion.coefficient!;
-      expect(Math.abs(d.value / 0.49 - 1)).toBeLessThan(0.01);
+      expect((d.ci95[1] - d.ci95[0]) / 0.49).toBeLessThan(0.06);
       expect(d.ci95[0]).toBeLessThan(0.49);
       expect(d.ci95[1]).toBeGreaterThan(0.49);
       const sigma = report.diffusion.localizationError!;

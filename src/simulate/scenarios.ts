@@ -23,11 +23,11 @@ const bench = {
  *
  * - `clean`: 60 s of free beads, no fault (the null case).
  * - `drift`: the stage starts to creep at 0.15 µm/s in x and −0.05 µm/s in y at 20 s.
- * - `vibration`: a 7.3 Hz, 80 nm (0-to-peak) shake along y from 15 s.
- * - `heating`: the sample warms by 3 K/min from 20 s while the sensor log stays at 21.0 °C.
- * - `mismatch`: the sample is 2.5 K warmer than reported, all run.
+ * - `vibration`: a 7.3 Hz, 80 nm (0-to-peak) shake along y from 120 s (4 minutes in all).
+ * - `heating`: the sample warms by 3 K/min from 150 s while the sensor log stays at 21.0 °C (6 minutes).
+ * - `mismatch`: the sample is 5 K warmer than reported, all run (3 minutes).
  * - `clumping`: a dense lot (BF-PS-1188-R, re-suspended) whose beads start to stick at 10 s.
- * - `focus`: the focus slips at 30 s and σ rises from 30 nm to 120 nm (D unchanged).
+ * - `focus`: the focus slips at 120 s and σ rises from 30 nm to 120 nm (D unchanged; 3 minutes).
  * - `dropped-frames`: dropped bursts, duplicates, timestamp jitter and a clock set back at 45 s.
  * - `crowded`: a dense hard-core suspension (no sticking): a negative control for clumping.
  * - `oscillator`: one trapped bead driven at 4 Hz among free beads: a negative control for vibration.
@@ -40,9 +40,9 @@ const bench = {
 export const scenarios: Record<string, SimulationOptions> = {
   clean: { ...bench, seed: 1188, frames: 1200 },
   drift: { ...bench, seed: 2201, frames: 1200, drift: { start: 20, velocity: [0.15, -0.05] } },
-  vibration: { ...bench, seed: 2202, frames: 1200, vibration: { start: 15, frequency: 7.3, amplitude: 0.08, axis: 'y' } },
-  heating: { ...bench, seed: 2203, frames: 1200, heating: { start: 20, ratePerMinute: 3 } },
-  mismatch: { ...bench, seed: 2204, frames: 1200, temperatureMismatch: 2.5 },
+  vibration: { ...bench, seed: 2202, frames: 4800, vibration: { start: 120, frequency: 7.3, amplitude: 0.08, axis: 'y' } },
+  heating: { ...bench, seed: 2203, frames: 7200, heating: { start: 150, ratePerMinute: 3 } },
+  mismatch: { ...bench, seed: 2204, frames: 3600, temperatureMismatch: 5 },
   clumping: {
     ...bench,
     seed: 2205,
@@ -52,7 +52,7 @@ export const scenarios: Record<string, SimulationOptions> = {
     clumping: { start: 10, stickProbability: 0.3, contactDistance: 1.0 },
     minResolvable: 1.1,
   },
-  focus: { ...bench, seed: 2206, frames: 1200, focus: { start: 30, localizationError: 0.12 } },
+  focus: { ...bench, seed: 2206, frames: 3600, focus: { start: 120, localizationError: 0.12 } },
   'dropped-frames': {
     ...bench,
     seed: 2207,

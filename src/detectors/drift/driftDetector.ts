@@ -1,0 +1,614 @@
+import type { Condition, AlertLevel } from '../../alerts/condition.js';
+import type { Detector } from '../detector.js';
+import type { DetectorContext } from '../detectorContext.js';
+import type { FrameSteps } from '../frameSteps.js';
+import { normalQuantile, normalUpperTail } from '../../stats/quantiles.js';
+import { AffineFlowTest, type AffineFlowResult } from './affineFlowTest.js';
+import { medianInPlace } from './medianInPlace.js';
+import { PageCusum } from './pageCusum.js';
+import { siegmundArl } from './siegmundArl.js';
+import { siegmundThreshold } from './siegmundThreshold.js';
+
+/** Options of {@link DriftDetector}; every field has a default. */
+export interface DriftOptions {
+  /** Share of the false-warn budget, warns per hour of data (default 0.25). 90 % goes to the CUSUM, 10 % to the jump check. */
+  falseWarnsPerHour: number;
+  /** Smallest drift worth catching, µm/s; default: the speed that biases the MSD at the longest lag by `tolerance`, √(4D·tol/τ_max). */
+  minimumVelocity: number | undefined;
+  /** Relative MSD bias at the longest lag that matters, |v|²τ/(4D) (default 0.05). */
+  tolerance: number;
+  /** A drift whose bias exceeds stopFactor × tolerance is `stop` (default 5). */
+  stopFactor: number;
+  /** Field displacement over a drift episode that matters, µm (default 2). */
+  maxDisplacement: number;
+  /** One-frame jump threshold on |z| (default: max(5, the budget-derived two-sided normal quantile)). */
+  jumpThreshold: number | undefined;
+  /** Length of the non-overlapping windows for the recent velocity and the flow diagnosis, s (default 10). */
+  windowSeconds: number;
+  /** Frames with steps before the CUSUM is armed (default 100). */
+  warmupFrames: number;
+  /** Memory of the pooled per-particle step variance, frames (EWMA; default 2000). */
+  varianceMemoryFrames: number;
+  /** Per-window significance for the flow diagnosis (affine F-test, mean-vs-median test) (default 1e-3). */
+  flowAlpha: number;
+  /** Track ids of immobile fiducial beads: when given, drift is measured from them alone. */
+  fiducialIds: readonly number[] | undefined;
+  /** Most points kept in the decimated cumulative path (default 2000). */
+  pathPoints: number;
+}
+
+/** Velocity with per-axis 95 % CIs, µm/s. */
+export interface VelocityEstimate {
+  value: [number, number];
+  ci95: [[number, number], [number, number]];
+}
+
+/** What {@link DriftDetector.summary} returns. */
+export interface DriftSummary {
+  /** Whole-run common-mode velocity (net displacement / duration), µm/s, or null before any step. */
+  velocity: VelocityEstimate | null;
+  /** Velocity over the last complete window, µm/s. */
+  recentVelocity: VelocityEstimate | null;
+  /** Whole-run velocity from the per-frame coordinate-wise median step, µm/s. */
+  robustVelocity: VelocityEstimate | null;
+  /** Cumulative common-mode displacement X(t), Y(t), µm, decimated to ≤ pathPoints points. */
+  path: { t: number[]; x: number[]; y: number[] };
+  /** Flow diagnosis of the last complete window. */
+  flow: {
+    fTest: { pValue: number; f: number; df2: number } | null;
+    rotation: number | null;
+    divergence: number | null;
+    shear: number | null;
+    pattern: string | null;
+    subpopulation: { pValue: number; meanMinusMedian: [number, number] } | null;
+  };
+  /** One-frame jumps found, µm. */
+  jumps: { t: number; dx: number; dy: number }[];
+  /** How the common mode was measured. */
+  method: string;
+  /** CUSUM design and signal counts (null until armed). */
+  cusum: { k: number; h: number; arl0PerChart: number; minimumVelocity: number; signals: number } | null;
+  /** Frames with steps used; frames skipped for too few steps. */
+  frames: number;
+  skippedFrames: number;
+}
+
+const DEFAULTS: DriftOptions = {
+  falseWarnsPerHour: 0.25,
+  minimumVelocity: undefined,
+  tolerance: 0.05,
+  stopFactor: 5,
+  maxDisplacement: 2,
+  jumpThreshold: undefined,
+  windowSeconds: 10,
+  warmupFrames: 100,
+  varianceMemoryFrames: 2000,
+  flowAlpha: 1e-3,
+  fiducialIds: undefined,
+  pathPoints: 2000,
+};
+
+const MEDIAN_VARIANCE_FACTOR = Math.PI / 2; // Var(median)/Var(mean) for normal steps, large N
+const Z975 = 1.959963984540054;
+const CHART_NAMES = ['x+', 'x-', 'y+', 'y-'] as const;
+
+/** Running sums of increments, from which a velocity and its CI follow. */
+class IncrementSums {
+  sumX = 0;
+  sumY = 0;
+  varX = 0;
+  varY = 0;
+  medX = 0;
+  medY = 0;
+  frames = 0;
+  reset(): void {
+    this.sumX = this.sumY = this.varX = this.varY = this.medX = this.medY = 0;
+    this.frames = 0;
+  }
+  add(mx: number, my: number, vx: number, vy: number, medX: number, medY: number): void {
+    this.sumX += mx;
+    this.sumY += my;
+    this.varX += vx;
+    this.varY += vy;
+    this.medX += medX;
+    this.medY += medY;
+    this.frames++;
+  }
+  copyFrom(other: IncrementSums): void {
+    this.sumX = other.sumX; this.sumY = other.sumY;
+    this.varX = other.varX; this.varY = other.varY;
+    this.medX = other.medX; this.medY = other.medY;
+    this.frames = other.frames;
+  }
+  /** v̂ = Σm/(WΔt), SE = √(Σ s_t²/N_t)/(WΔt) (detectors.md §1); robust uses medians with π/2 variance. */
+  velocity(frameInterval: number, robust: boolean): VelocityEstimate | null {
+    if (this.frames === 0) return null;
+    const duration = this.frames * frameInterval;
+    const factor = robust ? Math.sqrt(MEDIAN_VARIANCE_FACTOR) : 1;
+    const vx = (robust ? this.medX : this.sumX) / duration;
+    const vy = (robust ? this.medY : this.sumY) / duration;
+    const sex = (factor * Math.sqrt(this.varX)) / duration;
+    const sey = (factor * Math.sqrt(this.varY)) / duration;
+    return { value: [vx, vy], ci95: [[vx - Z975 * sex, vx + Z975 * sex], [vy - Z975 * sey, vy + Z975 * sey]] };
+  }
+}
+
+/**
+ * Stage-drift detector (kind `drift`), detectors.md §1.
+ *
+ * Per frame: the common-mode step m(t) (mean of the one-frame steps, or of the fiducial beads'
+ * steps when `fiducialIds` is set) and its coordinate-wise median; the cumulative path
+ * X(t) = Σ m; velocities with CIs from the increments (never from a line fit of X(t)). Alarms:
+ * four one-sided Page CUSUMs (Page 1954) on z_t = m/(ŝ/√N_t), k = δ* / 2, h from Siegmund's
+ * approximation for ARL0 = 4 × (frames per hour)/(0.9 × budget) per chart; a one-frame Shewhart
+ * check on |z_t| for stage bumps. ŝ² is the pooled per-particle step variance of past frames
+ * (an EWMA of the per-frame s_t²), so z_t is close to normal even at small N_t (a per-frame
+ * s_t would give t-tails with N_t − 1 degrees of freedom and break the jump check's false-alarm
+ * rate); it still needs neither D nor σ. Over non-overlapping windows: the affine flow F-test
+ * and a mean-versus-median test, so that rotation, shear, convection or a moving
+ * subpopulation is named as such and not called stage drift.
+ *
+ * Severity (detectors.md §0 rule 2): a significant drift is `info`; `warn` when the bias of the
+ * 2-D MSD at the longest lag, |v|²τ/(4D), exceeds `tolerance` or the episode moved the field by
+ * more than `maxDisplacement`; `stop` beyond `stopFactor` × tolerance. Both are judged on the lower
+ * 95 % bound of the speed from the frames after the first signal (≥ 10 of them), which is free of
+ * the selection bias of the excursion that made the chart signal.
+ *
+ * Cost: O(N_t) per frame (one quickselect per axis), O(1) memory apart from the bounded path.
+ *
+ * @example
+ * const drift = new DriftDetector({ windowSeconds: 5 });
+ * const conditions = drift.push(frameSteps, context); // → [] while nothing is wrong
+ * drift.summary().velocity;                           // → { value: [0.002, -0.001], ci95: [...] }
+ */
+export class DriftDetector implements Detector<DriftSummary> {
+  readonly name = 'drift';
+  private readonly options: DriftOptions;
+  private readonly fiducials: Set<number> | undefined;
+  // Scratch buffers (grown on demand, never shrunk).
+  private bufDx = new Float64Array(64);
+  private bufDy = new Float64Array(64);
+  private bufX0 = new Float64Array(64);
+  private bufY0 = new Float64Array(64);
+  private bufMed = new Float64Array(64);
+  private frameInterval = 0;
+  // Pooled per-particle step variance per axis (EWMA after warm-up), µm².
+  private poolX = 0;
+  private poolY = 0;
+  private poolFrames = 0;
+  private meanCount = 0;
+  // Increment sums: whole run, current window, last complete window, per chart since last zero, episode.
+  private readonly run = new IncrementSums();
+  private readonly window = new IncrementSums();
+  private readonly lastWindow = new IncrementSums();
+  private readonly sinceZero = [new IncrementSums(), new IncrementSums(), new IncrementSums(), new IncrementSums()];
+  private readonly episode = new IncrementSums();
+  // Frames after the first signal only: free of the selection bias of the since-zero sums.
+  private readonly post = new IncrementSums();
+  private readonly flowTest = new AffineFlowTest();
+  private windowFrames = 0;
+  private lastFlow: AffineFlowResult | undefined;
+  private lastSubpopulation: { pValue: number; meanMinusMedian: [number, number] } | undefined;
+  private flowLevel: AlertLevel | null = null;
+  // CUSUM state.
+  private charts: PageCusum[] | undefined;
+  private minimumVelocity = 0;
+  private arl0PerChart = 0;
+  private holdFrames = 0;
+  private framesSinceSignal = 0;
+  private driftLevel: AlertLevel | null = null;
+  private jumpThreshold = 5;
+  private jumpOpen = false;
+  private readonly jumps: { t: number; dx: number; dy: number }[] = [];
+  // Path, decimated by doubling the stride whenever it fills.
+  private pathX = 0;
+  private pathY = 0;
+  private pathStride = 1;
+  private pathCounter = 0;
+  private readonly pathT: number[] = [];
+  private readonly pathXs: number[] = [];
+  private readonly pathYs: number[] = [];
+  private frames = 0;
+  private skipped = 0;
+
+  /** @throws RangeError naming the option when an option is out of range */
+  constructor(options: Partial<DriftOptions> = {}) {
+    const o: DriftOptions = { ...DEFAULTS, ...options };
+    positive(o.falseWarnsPerHour, 'falseWarnsPerHour');
+    if (o.minimumVelocity !== undefined) positive(o.minimumVelocity, 'minimumVelocity');
+    positive(o.tolerance, 'tolerance');
+    if (!(o.stopFactor > 1) || !Number.isFinite(o.stopFactor)) throw new RangeError('drift requires stopFactor > 1');
+    positive(o.maxDisplacement, 'maxDisplacement');
+    if (o.jumpThreshold !== undefined) positive(o.jumpThreshold, 'jumpThreshold');
+    positive(o.windowSeconds, 'windowSeconds');
+    if (!Number.isInteger(o.warmupFrames) || o.warmupFrames < 2) throw new RangeError('drift requires warmupFrames to be an integer >= 2');
+    if (!(o.varianceMemoryFrames >= 10) || !Number.isFinite(o.varianceMemoryFrames)) throw new RangeError('drift requires varianceMemoryFrames >= 10');
+    if (!(o.flowAlpha > 0 && o.flowAlpha < 1)) throw new RangeError('drift requires flowAlpha in (0, 1)');
+    if (!Number.isInteger(o.pathPoints) || o.pathPoints < 10) throw new RangeError('drift requires pathPoints to be an integer >= 10');
+    if (o.fiducialIds !== undefined && (!Array.isArray(o.fiducialIds) || o.fiducialIds.some((id) => !Number.isInteger(id) || id < 0))) {
+      throw new RangeError('drift requires fiducialIds to be non-negative integer track ids');
+    }
+    this.options = o;
+    this.fiducials = o.fiducialIds && o.fiducialIds.length > 0 ? new Set(o.fiducialIds) : undefined;
+  }
+
+  /** Feed one frame; returns the conditions that changed on it. O(N_t). */
+  push(steps: FrameSteps, context: DetectorContext): readonly Condition[] {
+    const out: Condition[] = [];
+    if (!(steps.frameInterval > 0)) return out;
+    if (this.frameInterval === 0) this.configureTiming(steps.frameInterval);
+    // Close a jump condition opened on the previous frame (it lasts one frame).
+    if (this.jumpOpen) {
+      this.jumpOpen = false;
+      out.push(this.clearCondition('drift:jump', steps.t, 'stage jump over', 'jump |z|', this.jumpThreshold));
+    }
+    const n = this.gather(steps);
+    if (n < 2) {
+      this.skipped++;
+      return out;
+    }
+    this.frames++;
+    const dx = this.bufDx, dy = this.bufDy;
+    let mx = 0, my = 0;
+    for (let i = 0; i < n; i++) { mx += dx[i]; my += dy[i]; }
+    mx /= n; my /= n;
+    let ssx = 0, ssy = 0;
+    for (let i = 0; i < n; i++) {
+      ssx += (dx[i] - mx) * (dx[i] - mx);
+      ssy += (dy[i] - my) * (dy[i] - my);
+    }
+    const s2x = ssx / (n - 1);
+    const s2y = ssy / (n - 1);
+    this.bufMed.set(dx.subarray(0, n));
+    const medX = medianInPlace(this.bufMed, n);
+    this.bufMed.set(dy.subarray(0, n));
+    const medY = medianInPlace(this.bufMed, n);
+    const vx = s2x / n, vy = s2y / n;
+
+    // Path and whole-run sums (jumps included: they are real common-mode motion).
+    this.pathX += mx;
+    this.pathY += my;
+    this.recordPath(steps.t);
+    this.run.add(mx, my, vx, vy, medX, medY);
+
+    // Standardise against the pooled variance of past frames, then update the pool.
+    const pooled = this.poolFrames > 0;
+    const zx = pooled ? mx / Math.sqrt(this.poolX / n) : 0;
+    const zy = pooled ? my / Math.sqrt(this.poolY / n) : 0;
+    this.updatePool(s2x, s2y, n);
+
+    const jump = pooled && this.poolFrames > this.options.warmupFrames && Math.max(Math.abs(zx), Math.abs(zy)) > this.jumpThreshold;
+    if (jump) {
+      this.jumps.push({ t: steps.t, dx: mx, dy: my });
+      out.push(this.jumpCondition(steps.t, mx, my, Math.max(Math.abs(zx), Math.abs(zy)), context));
+      this.jumpOpen = true;
+    }
+
+    // Window: recent velocity and flow diagnosis on non-overlapping windows.
+    this.window.add(mx, my, vx, vy, medX, medY);
+    if (!this.fiducials) this.flowTest.addFrame(n, this.bufX0, this.bufY0, dx, dy);
+    this.windowFrames++;
+    if (this.windowFrames >= Math.max(10, Math.round(this.options.windowSeconds / this.frameInterval))) {
+      const flowCondition = this.closeWindow(steps.t);
+      if (flowCondition) out.push(flowCondition);
+    }
+
+    // CUSUM (not fed with jump frames, which the Shewhart check reports).
+    if (!this.charts && this.poolFrames >= this.options.warmupFrames) this.arm(context);
+    if (this.charts && !jump) {
+      let signalled = -1;
+      const wasActive = this.driftLevel !== null;
+      const zs = [zx, -zx, zy, -zy];
+      for (let c = 0; c < 4; c++) {
+        const chart = this.charts[c];
+        // Sums since the chart last left zero: the post-change estimate at a signal.
+        if (chart.value === 0) this.sinceZero[c].reset();
+        const fired = chart.push(zs[c]);
+        this.sinceZero[c].add(mx, my, vx, vy, medX, medY);
+        if (fired && signalled < 0) signalled = c;
+      }
+      if (wasActive) {
+        this.episode.add(mx, my, vx, vy, medX, medY);
+        this.post.add(mx, my, vx, vy, medX, medY);
+      } else if (signalled >= 0) {
+        this.episode.copyFrom(this.sinceZero[signalled]);
+        this.post.reset();
+      }
+      if (signalled >= 0) this.framesSinceSignal = 0;
+      else this.framesSinceSignal++;
+      const condition = this.driftCondition(steps.t, context, signalled);
+      if (condition) out.push(condition);
+    }
+    return out;
+  }
+
+  /** The report fragment: velocities, path, flow diagnosis, jumps, method. O(path points). */
+  summary(): DriftSummary {
+    const dt = this.frameInterval || 1;
+    const flow = this.lastFlow;
+    return {
+      velocity: this.run.velocity(dt, false),
+      recentVelocity: this.lastWindow.velocity(dt, false),
+      robustVelocity: this.run.velocity(dt, true),
+      path: { t: this.pathT.slice(), x: this.pathXs.slice(), y: this.pathYs.slice() },
+      flow: {
+        fTest: flow ? { pValue: flow.pValue, f: flow.f, df2: flow.df2 } : null,
+        rotation: flow ? flow.rotation : null,
+        divergence: flow ? flow.divergence : null,
+        shear: flow ? flow.shear : null,
+        pattern: flow && flow.pValue < this.options.flowAlpha ? flow.pattern : null,
+        subpopulation: this.lastSubpopulation ?? null,
+      },
+      jumps: this.jumps.slice(),
+      method: this.fiducials
+        ? `mean one-frame step of fiducial tracks ${[...this.fiducials].join(', ')}; CUSUM and jump check on it`
+        : 'mean one-frame step over all linked particles (self-calibrating SE); median step as robust check; affine F-test and mean-vs-median test for flow',
+      cusum: this.charts
+        ? {
+            k: this.charts[0].k,
+            h: this.charts[0].h,
+            arl0PerChart: this.arl0PerChart,
+            minimumVelocity: this.minimumVelocity,
+            signals: this.charts.reduce((sum, chart) => sum + chart.signals, 0),
+          }
+        : null,
+      frames: this.frames,
+      skippedFrames: this.skipped,
+    };
+  }
+
+  // ---- internals ----
+
+  private configureTiming(frameInterval: number): void {
+    this.frameInterval = frameInterval;
+    const framesPerHour = 3600 / frameInterval;
+    const jumpAlpha = (0.1 * this.options.falseWarnsPerHour) / framesPerHour; // per frame, both axes, both signs
+    this.jumpThreshold = this.options.jumpThreshold ?? Math.max(5, normalQuantile(1 - jumpAlpha / 4));
+  }
+
+  /** Copy the usable steps (fiducial or all, finite) into the scratch buffers; returns their count. */
+  private gather(steps: FrameSteps): number {
+    const count = steps.stepCount;
+    if (this.bufDx.length < count) {
+      const size = Math.max(count, 2 * this.bufDx.length);
+      this.bufDx = new Float64Array(size);
+      this.bufDy = new Float64Array(size);
+      this.bufX0 = new Float64Array(size);
+      this.bufY0 = new Float64Array(size);
+      this.bufMed = new Float64Array(size);
+    }
+    let n = 0;
+    for (let i = 0; i < count; i++) {
+      const a = steps.dx[i];
+      const b = steps.dy[i];
+      if (!Number.isFinite(a) || !Number.isFinite(b)) continue;
+      const p = steps.stepParticle[i];
+      if (this.fiducials && !this.fiducials.has(steps.trackId[p])) continue;
+      this.bufDx[n] = a;
+      this.bufDy[n] = b;
+      // Start position of the step: independent of the step's own noise.
+      this.bufX0[n] = steps.x[p] - a;
+      this.bufY0[n] = steps.y[p] - b;
+      n++;
+    }
+    return n;
+  }
+
+  private updatePool(s2x: number, s2y: number, n: number): void {
+    this.poolFrames++;
+    // Plain running mean during warm-up, then an EWMA with the configured memory.
+    const weight = Math.max(1 / this.poolFrames, 1 / this.options.varianceMemoryFrames);
+    this.poolX += weight * (s2x - this.poolX);
+    this.poolY += weight * (s2y - this.poolY);
+    this.meanCount += weight * (n - this.meanCount);
+  }
+
+  private recordPath(t: number): void {
+    this.pathCounter++;
+    if (this.pathCounter < this.pathStride) return;
+    this.pathCounter = 0;
+    this.pathT.push(t);
+    this.pathXs.push(this.pathX);
+    this.pathYs.push(this.pathY);
+    if (this.pathT.length >= this.options.pathPoints) {
+      // Keep every other point and double the stride: bounded memory, uniform spacing.
+      let j = 0;
+      for (let i = 1; i < this.pathT.length; i += 2, j++) {
+        this.pathT[j] = this.pathT[i];
+        this.pathXs[j] = this.pathXs[i];
+        this.pathYs[j] = this.pathYs[i];
+      }
+      this.pathT.length = this.pathXs.length = this.pathYs.length = j;
+      this.pathStride *= 2;
+    }
+  }
+
+  private arm(context: DetectorContext): void {
+    const dt = this.frameInterval;
+    const perAxisVariance = 0.5 * (this.poolX + this.poolY); // µm² per step
+    const tau = context.longestLag > 0 ? context.longestLag : 10 * dt;
+    // D from the pipeline, else from the step variance (over-estimates D when σ is large: a less sensitive chart).
+    const diffusion = context.diffusion !== undefined && context.diffusion > 0 ? context.diffusion : perAxisVariance / (2 * dt);
+    this.minimumVelocity = this.options.minimumVelocity ?? Math.sqrt((4 * diffusion * this.options.tolerance) / tau);
+    const sdMean = Math.sqrt(perAxisVariance / Math.max(2, this.meanCount));
+    const delta = (this.minimumVelocity * dt) / sdMean; // per-axis shift, SD of z
+    const k = Math.max(0.01, delta / 2);
+    const framesPerHour = 3600 / dt;
+    this.arl0PerChart = (4 * framesPerHour) / (0.9 * this.options.falseWarnsPerHour);
+    const h = siegmundThreshold(k, this.arl0PerChart);
+    this.charts = [new PageCusum(k, h), new PageCusum(k, h), new PageCusum(k, h), new PageCusum(k, h)];
+    this.holdFrames = Math.ceil(3 * siegmundArl(2 * k, k, h)) + 10;
+  }
+
+  private closeWindow(t: number): Condition | undefined {
+    this.lastWindow.copyFrom(this.window);
+    const flow = this.fiducials ? undefined : this.flowTest.result(this.frameInterval);
+    // Mean-versus-median test: Var(median − mean) ≈ (π/2 − 1)·Var(mean) for normal steps.
+    const w = this.window;
+    let sub: { pValue: number; meanMinusMedian: [number, number] } | undefined;
+    if (w.varX > 0 && w.varY > 0) {
+      const duration = w.frames * this.frameInterval;
+      const zx = (w.sumX - w.medX) / Math.sqrt((MEDIAN_VARIANCE_FACTOR - 1) * w.varX);
+      const zy = (w.sumY - w.medY) / Math.sqrt((MEDIAN_VARIANCE_FACTOR - 1) * w.varY);
+      const p = Math.min(1, 4 * normalUpperTail(Math.max(Math.abs(zx), Math.abs(zy))));
+      sub = { pValue: p, meanMinusMedian: [(w.sumX - w.medX) / duration, (w.sumY - w.medY) / duration] };
+    }
+    this.lastFlow = flow;
+    this.lastSubpopulation = sub;
+    this.window.reset();
+    this.flowTest.reset();
+    this.windowFrames = 0;
+    const alpha = this.options.flowAlpha;
+    const flowing = flow !== undefined && flow.pValue < alpha;
+    const subpopulation = sub !== undefined && sub.pValue < alpha;
+    const level: AlertLevel | null = flowing || subpopulation ? 'info' : null;
+    if (level === this.flowLevel) return undefined;
+    this.flowLevel = level;
+    if (level === null) return this.clearCondition('drift:flow', t, 'no position-dependent flow or moving subpopulation in the last window', 'flow p-value', alpha);
+    const parts: string[] = [];
+    if (flowing && flow) {
+      parts.push(`${describePattern(flow)} (rotation ${fmt(flow.rotation, 4)} rad/s, divergence ${fmt(flow.divergence, 4)} 1/s, shear ${fmt(flow.shear, 4)} 1/s; F-test p = ${flow.pValue.toExponential(1)})`);
+    }
+    if (subpopulation && sub) {
+      parts.push(`part of the particles move together: mean minus median velocity (${fmt(sub.meanMinusMedian[0], 3)}, ${fmt(sub.meanMinusMedian[1], 3)}) µm/s, p = ${sub.pValue.toExponential(1)}`);
+    }
+    const pValue = Math.min(flowing && flow ? flow.pValue : 1, subpopulation && sub ? sub.pValue : 1);
+    return {
+      key: 'drift:flow',
+      kind: 'drift',
+      level,
+      t,
+      message: `The sample itself is flowing, not only the stage: ${parts.join('; ')}. Likely cause: convection from uneven heating, evaporation or a leaking chamber; seal the chamber and let the temperature settle. The mean drift velocity is then not a stage drift; use the median-step velocity`,
+      statistic: { name: 'flow p-value (affine F-test, mean-vs-median test)', value: pValue, threshold: alpha },
+      falseAlarm: { pValue: alpha },
+      effect: flowing && flow ? { name: 'rotation rate', value: flow.rotation, ci95: null, unit: 'rad/s' } : null,
+      detail: {
+        affine: flow ? { gradient: flow.gradient, rotation: flow.rotation, divergence: flow.divergence, shear: flow.shear, pattern: flow.pattern, f: flow.f, df2: flow.df2, pValue: flow.pValue } : null,
+        subpopulation: sub ?? null,
+      },
+    };
+  }
+
+  private driftCondition(t: number, context: DetectorContext, signalled: number): Condition | undefined {
+    const active = this.driftLevel !== null;
+    if (!active && signalled < 0) return undefined;
+    const charts = this.charts as PageCusum[];
+    if (active && signalled < 0 && this.framesSinceSignal > this.holdFrames) {
+      this.driftLevel = null;
+      this.episode.reset();
+      this.post.reset();
+      return this.clearCondition('drift:stage', t, 'drift has stopped', 'CUSUM', charts[0].h);
+    }
+    const dt = this.frameInterval;
+    const flowSuspected = this.flowLevel !== null;
+    // The message quotes the episode (since the chart last left zero); severity uses only the frames after
+    // the first signal, whose estimate is not inflated by the selection of the excursion, and its lower
+    // 95 % bound on the speed, so that a harmless drift is not promoted by noise.
+    const usePost = this.post.frames >= 10;
+    const velocity = (usePost ? this.post : this.episode).velocity(dt, flowSuspected) as VelocityEstimate;
+    const [vx, vy] = velocity.value;
+    const speed = Math.hypot(vx, vy);
+    const tau = context.longestLag > 0 ? context.longestLag : 10 * dt;
+    const perAxisVariance = 0.5 * (this.poolX + this.poolY);
+    const diffusion = context.diffusion !== undefined && context.diffusion > 0 ? context.diffusion : perAxisVariance / (2 * dt);
+    const bias = (speed * speed * tau) / (4 * diffusion);
+    const duration = this.episode.frames * dt;
+    const seX = (velocity.ci95[0][1] - velocity.ci95[0][0]) / (2 * Z975);
+    const seY = (velocity.ci95[1][1] - velocity.ci95[1][0]) / (2 * Z975);
+    const seSpeed = speed > 0 ? Math.hypot((vx / speed) * seX, (vy / speed) * seY) : Math.hypot(seX, seY);
+    const speedLow = Math.max(0, speed - Z975 * seSpeed);
+    const biasLow = (speedLow * speedLow * tau) / (4 * diffusion);
+    const displacementLow = speedLow * duration;
+    const tol = this.options.tolerance;
+    let level: AlertLevel = 'info';
+    if (usePost) {
+      if (biasLow > this.options.stopFactor * tol) level = 'stop';
+      else if (biasLow > tol || displacementLow > this.options.maxDisplacement) level = 'warn';
+    }
+    // Escalate only within an episode: it clears through the hold period, not by flickering.
+    if (rank(level) < rank(this.driftLevel)) level = this.driftLevel as AlertLevel;
+    if (level === this.driftLevel) return undefined;
+    this.driftLevel = level;
+    const chart = charts[signalled >= 0 ? signalled : 0];
+    const heading = (Math.atan2(vy, vx) * 180) / Math.PI;
+    const source = this.fiducials ? 'fiducial beads' : flowSuspected ? 'median step (flow suspected)' : 'mean step';
+    const cause = flowSuspected
+      ? 'The sample is also flowing (see the flow alert), so part of this may be convection rather than the stage; seal the chamber and let the temperature settle'
+      : 'Likely stage drift or thermal creep of the focus mount: let the stage settle after moving it, check the stage lock and tape down cables';
+    const seBias = (2 * speed * seSpeed * tau) / (4 * diffusion);
+    return {
+      key: 'drift:stage',
+      kind: 'drift',
+      level,
+      t,
+      message: `Field moving at ${fmt(speed, 3)} µm/s (x ${fmt(vx, 3)}, y ${fmt(vy, 3)} µm/s; heading ${heading.toFixed(0)}° from +x) over the last ${duration.toFixed(1)} s, from the ${source}; this inflates the MSD at the ${fmt(tau, 3)} s lag by ${(100 * bias).toFixed(1)} % (tolerance ${(100 * tol).toFixed(0)} %). ${cause}; subtract the drift before fitting`,
+      statistic: { name: `CUSUM ${CHART_NAMES[signalled >= 0 ? signalled : 0]} (SD units)`, value: chart.lastSignalValue, threshold: chart.h },
+      falseAlarm: { arl0Frames: this.arl0PerChart / 4, perHour: (0.9 * this.options.falseWarnsPerHour) },
+      effect: { name: 'relative MSD bias at the longest lag', value: bias, ci95: [biasLow, bias + Z975 * seBias], unit: '1' },
+      detail: {
+        velocity,
+        speed,
+        episodeSeconds: duration,
+        chart: CHART_NAMES[signalled >= 0 ? signalled : 0],
+        k: chart.k,
+        h: chart.h,
+        minimumVelocity: this.minimumVelocity,
+        flowSuspected,
+      },
+    };
+  }
+
+  private jumpCondition(t: number, mx: number, my: number, z: number, context: DetectorContext): Condition {
+    const size = Math.hypot(mx, my);
+    const dt = this.frameInterval;
+    const tau = context.longestLag > 0 ? context.longestLag : 10 * dt;
+    const perAxisVariance = 0.5 * (this.poolX + this.poolY);
+    const diffusion = context.diffusion !== undefined && context.diffusion > 0 ? context.diffusion : perAxisVariance / (2 * dt);
+    // A jump matters when its square is more than `tolerance` of the 2-D MSD at the longest lag.
+    const matters = size * size > this.options.tolerance * 4 * diffusion * tau;
+    const framesPerHour = 3600 / dt;
+    const pTwoSided = 2 * normalUpperTail(this.jumpThreshold);
+    return {
+      key: 'drift:jump',
+      kind: 'drift',
+      level: matters ? 'warn' : 'info',
+      t,
+      message: `All particles jumped together by ${fmt(size, 3)} µm (x ${fmt(mx, 3)}, y ${fmt(my, 3)} µm) in one frame, ${z.toFixed(1)} SD; likely the stage or the table was bumped. Avoid touching the rig; the frames around t = ${fmt(t, 4)} s should be split or excluded`,
+      statistic: { name: 'jump |z|', value: z, threshold: this.jumpThreshold },
+      falseAlarm: { pValue: 2 * pTwoSided, perHour: 2 * pTwoSided * framesPerHour },
+      effect: { name: 'jump size', value: size, ci95: null, unit: 'µm' },
+      detail: { dx: mx, dy: my },
+    };
+  }
+
+  private clearCondition(key: string, t: number, message: string, statistic: string, threshold: number): Condition {
+    return {
+      key,
+      kind: 'drift',
+      level: null,
+      t,
+      message: `Cleared: ${message}`,
+      statistic: { name: statistic, value: 0, threshold },
+      falseAlarm: {},
+      effect: null,
+    };
+  }
+}
+
+function rank(level: AlertLevel | null): number {
+  return level === 'stop' ? 3 : level === 'warn' ? 2 : level === 'info' ? 1 : 0;
+}
+
+function describePattern(flow: AffineFlowResult): string {
+  if (flow.pattern === 'rotation') return 'the field is rotating';
+  if (flow.pattern === 'shear') return 'there is a shear flow across the field';
+  return 'there is a converging or diverging flow (convection)';
+}
+
+function positive(value: number, name: string): void {
+  if (!(value > 0) || !Number.isFinite(value)) throw new RangeError(`drift requires ${name} > 0`);
+}
+
+function fmt(value: number, digits: number): string {
+  return Number(value.toPrecision(digits)).toString();
+}

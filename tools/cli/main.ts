@@ -6,6 +6,11 @@ import type { SimulationOptions } from '../../src/simulate/simulationOptions.js'
 import { writeSimulation } from '../simulate/writeSimulation.js';
 import { analyzeFile, type AnalyzeFlags } from './analyze.js';
 import { formatReport } from './formatReport.js';
+import { runDemo, type DemoFlags } from './demo.js';
+import { runReplay, streamRun, type ReplayFlags } from './replay.js';
+import { runServe, type ServeFlags } from './serve.js';
+import { simulationEvents } from '../rig/simulationEvents.js';
+import { simulationRunMessage } from '../rig/simulationRunMessage.js';
 import { numberOption, UsageError } from './usageError.js';
 
 /** Package version, for `--version`. */
@@ -91,6 +96,11 @@ function buildProgram(io: Io): Command {
     .option('--frames <n>', 'number of frames (default: the scenario\'s)')
     .option('--particles <n>', 'mean number of particles in the field (default: the scenario\'s)')
     .option('--no-ids', 'write no track ids (the analysis must link)')
+    .option('--url <ws>', 'stream to a server as a rig would (ws://host:port/rig) instead of writing files')
+    .option('--token <secret>', 'access token for --url (default JOSTLE_TOKEN, or ?token= in the URL)')
+    .option('--speed <k>', 'with --url: stream k times faster than real time (default 1)')
+    .option('--fast', 'with --url: stream as fast as the server takes it')
+    .option('--run-id <id>', 'with --url: the run id to send (default: the server makes one)')
     .addOption(new Option('--list', 'list the scenarios and exit'))
     .action(async (name: string, flags: SimulateFlags) => {
       if (flags.list) {
@@ -99,8 +109,66 @@ function buildProgram(io: Io): Command {
         }
         return;
       }
+      if (flags.url !== undefined) {
+        const options = simulationOptionsFor(name, flags);
+        const speed = numberOption('--speed', flags.speed, (n) => n > 0) ?? 1;
+        const sent = await streamRun(flags.url, flags.token, simulationRunMessage(options, flags.runId, `simulated ${name}`), simulationEvents(options), { speed, fast: flags.fast === true });
+        io.stdout.write(`run ${sent.run}: ${sent.frames} frames, ${sent.centroids} centroids sent, ${sent.alerts} alerts, ${sent.errors} rejected\n`);
+        return;
+      }
       const summary = await simulateToFiles(name, flags);
       io.stdout.write(`${summary.rows} rows in ${summary.frames} frames written to ${summary.csv} (truth: ${summary.truthPath})\n`);
+    });
+
+  program
+    .command('serve')
+    .description('start the live server: rig endpoint /rig, dashboards /watch, the web page and /api')
+    .option('--host <address>', 'interface to bind (loopback unless --allow-remote)', '127.0.0.1')
+    .option('--port <n>', 'TCP port (0: a free one)', '7311')
+    .option('--data <folder>', 'data folder: recording and token', './jostle-data')
+    .option('--token <secret>', 'access token (default JOSTLE_TOKEN, else one kept in the data folder)')
+    .option('--allow-remote', 'allow a non-loopback --host (prints a warning)')
+    .option('--max-payload <bytes>', 'largest WebSocket message (default 16 MiB)')
+    .option('--quota <bytes>', 'recorded frame bytes per run (default 2 GiB)')
+    .option('--heartbeat <ms>', 'ping interval (default 15000)')
+    .action(async (flags: ServeFlags) => {
+      await runServe(flags, io.stdout);
+    });
+
+  program
+    .command('replay')
+    .description('stream a centroid CSV or a recorded run to a server as a rig would')
+    .argument('[file]', 'centroid CSV (CONTRACTS §2); or use --data and --run')
+    .requiredOption('--url <ws>', 'server rig endpoint, ws://host:port/rig')
+    .option('--token <secret>', 'access token (default JOSTLE_TOKEN, or ?token= in the URL)')
+    .option('--speed <k>', 'k times faster than real time (default 1)')
+    .option('--fast', 'as fast as the server takes it')
+    .option('--data <folder>', 'data folder of a recording (with --run)')
+    .option('--run <id>', 'recorded run to replay (with --data)')
+    .option('--as <id>', 'run id to send (default: the server makes one)')
+    .option('--label <text>', 'run label')
+    .option('--pixel-size <um>', 'CSV: size of one position unit, µm (default 1)')
+    .option('--frame-interval <s>', 'CSV: frame interval, s (default: from the t column)')
+    .option('--exposure <s>', 'CSV: exposure, s')
+    .option('--radius <um>', 'CSV: particle radius, µm')
+    .option('--temperature <celsius>', 'CSV: reported temperature, °C')
+    .option('--medium <m>', 'CSV: medium (as analyze --medium)')
+    .option('--temperature-log <csv>', 'CSV: temperature log t,celsius to send along')
+    .option('--tags <csv>', 'CSV: tags label,start,end,note to send along')
+    .option('--json', 'print the summary as JSON')
+    .action(async (file: string | undefined, flags: ReplayFlags) => {
+      await runReplay(file, flags, io.stdout);
+    });
+
+  program
+    .command('demo')
+    .description('start the server and stream the demo scenario into it in real time (npm start)')
+    .option('--port <n>', 'TCP port', '7311')
+    .option('--data <folder>', 'data folder', './jostle-data')
+    .option('--token <secret>', 'access token (default JOSTLE_TOKEN, else the kept one)')
+    .option('--speed <k>', 'k times faster than real time (default 1)')
+    .action(async (flags: DemoFlags) => {
+      await runDemo(flags, io.stdout, io.stderr);
     });
 
   return program;
@@ -116,6 +184,24 @@ interface SimulateFlags {
   particles?: string;
   ids: boolean;
   list?: boolean;
+  url?: string;
+  token?: string;
+  speed?: string;
+  fast?: boolean;
+  runId?: string;
+}
+
+function simulationOptionsFor(name: string, flags: SimulateFlags): SimulationOptions {
+  const scenario = scenarios[name];
+  if (!scenario) throw new UsageError(`unknown scenario '${name}': choose one of ${Object.keys(scenarios).join(', ')}`);
+  const integer = (n: number) => Number.isInteger(n) && n >= 0;
+  return {
+    ...scenario,
+    ...(flags.seed !== undefined ? { seed: numberOption('--seed', flags.seed, integer) as number } : {}),
+    ...(flags.frames !== undefined ? { frames: numberOption('--frames', flags.frames, (n) => integer(n) && n > 0) as number } : {}),
+    ...(flags.particles !== undefined ? { particles: numberOption('--particles', flags.particles, (n) => n > 0) as number } : {}),
+    ...(flags.ids === false ? { ids: false } : {}),
+  };
 }
 
 async function simulateToFiles(name: string, flags: SimulateFlags) {

@@ -1,0 +1,270 @@
+import Database from 'better-sqlite3';
+import { mkdirSync } from 'node:fs';
+import { join } from 'node:path';
+import type { AlertLevel } from '../src/alerts/condition.js';
+import type { Frame } from '../src/frame.js';
+import type { Alert } from '../src/report.js';
+import type { Tag } from '../src/tag.js';
+import type { RunListEntry } from './protocol.js';
+
+/** One frame packed for the database: columns as little-endian BLOBs (copies, safe to keep). */
+export interface FrameRow {
+  kind: 'frame';
+  run: string;
+  index: number;
+  t: number;
+  count: number;
+  x: Buffer;
+  y: Buffer;
+  z: Buffer | null;
+  id: Buffer | null;
+  intensity: Buffer | null;
+  /** Bytes of the BLOBs (what counts against the quota). */
+  bytes: number;
+}
+
+/** One temperature reading to record. */
+export interface TemperatureRow {
+  kind: 'temperature';
+  run: string;
+  t: number;
+  celsius: number;
+}
+
+/** What a recording batch holds. */
+export type RecordRow = FrameRow | TemperatureRow;
+
+/** The stored metadata of a run. */
+export interface RunRecord {
+  id: string;
+  label: string;
+  /** The checked `run` message, as JSON text. */
+  settings: string;
+  state: 'live' | 'ended';
+  started: string;
+  frames: number;
+  bytes: number;
+  lastIndex: number | null;
+  worst: AlertLevel | null;
+  /** True when the server stopped without the run being ended (a hard kill). */
+  interrupted: boolean;
+  /** The final report (JSON text) stored at `end`, or null. */
+  finalReport: string | null;
+}
+
+const SCHEMA = `
+CREATE TABLE IF NOT EXISTS runs (
+  id TEXT PRIMARY KEY, label TEXT NOT NULL, settings TEXT NOT NULL, state TEXT NOT NULL,
+  started TEXT NOT NULL, ended TEXT, frames INTEGER NOT NULL DEFAULT 0, bytes INTEGER NOT NULL DEFAULT 0,
+  last_index INTEGER, worst TEXT, interrupted INTEGER NOT NULL DEFAULT 0, final_report TEXT);
+CREATE TABLE IF NOT EXISTS frames (
+  run TEXT NOT NULL, idx INTEGER NOT NULL, t REAL NOT NULL, count INTEGER NOT NULL,
+  x BLOB NOT NULL, y BLOB NOT NULL, z BLOB, id BLOB, intensity BLOB, PRIMARY KEY (run, idx)) WITHOUT ROWID;
+CREATE TABLE IF NOT EXISTS temperatures (run TEXT NOT NULL, t REAL NOT NULL, celsius REAL NOT NULL);
+CREATE INDEX IF NOT EXISTS temperatures_run ON temperatures (run, t);
+CREATE TABLE IF NOT EXISTS tags (run TEXT NOT NULL, label TEXT NOT NULL, start REAL NOT NULL, end REAL, note TEXT NOT NULL);
+CREATE INDEX IF NOT EXISTS tags_run ON tags (run);
+CREATE TABLE IF NOT EXISTS alerts (run TEXT NOT NULL, id TEXT NOT NULL, kind TEXT NOT NULL, level TEXT NOT NULL,
+  start REAL NOT NULL, end REAL, message TEXT NOT NULL, detail TEXT NOT NULL, PRIMARY KEY (run, id));
+CREATE TABLE IF NOT EXISTS summaries (run TEXT NOT NULL, at TEXT NOT NULL, t REAL, frames INTEGER NOT NULL,
+  diffusion REAL, low REAL, high REAL, worst TEXT);
+`;
+
+function blob(values: Float64Array | Uint32Array, count: number): Buffer {
+  // Buffer.from(arrayBuffer, offset, length) is a view; the second Buffer.from copies, so the
+  // row stays valid when the connection reuses its frame buffers for the next message.
+  return Buffer.from(Buffer.from(values.buffer, values.byteOffset, count * values.BYTES_PER_ELEMENT));
+}
+
+function floats(data: Buffer, count: number): Float64Array {
+  const out = new Float64Array(count);
+  new Uint8Array(out.buffer).set(data.subarray(0, count * 8));
+  return out;
+}
+
+/**
+ * The recording: one SQLite database (`<data>/jostle.sqlite`, WAL, synchronous NORMAL) holding
+ * every run's metadata, frames (one row per frame, each column a packed little-endian BLOB:
+ * float64 for x, y, z, intensity and uint32 for id), temperature log, tags, alerts and periodic
+ * summaries. Frames and readings are written in batches, one transaction per batch; with WAL a
+ * committed batch survives a killed process.
+ *
+ * @example
+ * const recorder = new Recorder('./jostle-data');
+ * recorder.listRuns() // → [{ id: 'bench-a.0412', label: '', state: 'ended', ... }]
+ */
+export class Recorder {
+  private readonly db: Database.Database;
+  private readonly statements;
+
+  constructor(folder: string, options: { readonly?: boolean } = {}) {
+    if (!options.readonly) mkdirSync(folder, { recursive: true });
+    this.db = new Database(join(folder, 'jostle.sqlite'), { readonly: options.readonly === true, fileMustExist: options.readonly === true });
+    if (!options.readonly) {
+      this.db.pragma('journal_mode = WAL');
+      this.db.pragma('synchronous = NORMAL');
+      this.db.exec(SCHEMA);
+    }
+    const db = this.db;
+    this.statements = {
+      run: db.prepare('SELECT * FROM runs WHERE id = ?'),
+      list: db.prepare('SELECT id, label, state, started, frames, worst FROM runs ORDER BY started, id'),
+      insertRun: options.readonly ? undefined : db.prepare(
+        'INSERT INTO runs (id, label, settings, state, started) VALUES (?, ?, ?, \'live\', ?) ON CONFLICT(id) DO UPDATE SET state = \'live\', interrupted = 0, final_report = NULL, label = excluded.label, settings = excluded.settings',
+      ),
+      frame: options.readonly ? undefined : db.prepare('INSERT OR IGNORE INTO frames (run, idx, t, count, x, y, z, id, intensity) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)'),
+      runFrames: options.readonly ? undefined : db.prepare('UPDATE runs SET frames = frames + ?, bytes = bytes + ?, last_index = max(coalesce(last_index, -1), ?) WHERE id = ?'),
+      temperature: options.readonly ? undefined : db.prepare('INSERT INTO temperatures (run, t, celsius) VALUES (?, ?, ?)'),
+      tag: options.readonly ? undefined : db.prepare('INSERT INTO tags (run, label, start, end, note) VALUES (?, ?, ?, ?, ?)'),
+      alert: options.readonly ? undefined : db.prepare(
+        'INSERT INTO alerts (run, id, kind, level, start, end, message, detail) VALUES (?, ?, ?, ?, ?, ?, ?, ?) ON CONFLICT(run, id) DO UPDATE SET level = excluded.level, end = excluded.end, message = excluded.message, detail = excluded.detail',
+      ),
+      worst: options.readonly ? undefined : db.prepare('UPDATE runs SET worst = ? WHERE id = ?'),
+      summary: options.readonly ? undefined : db.prepare('INSERT INTO summaries (run, at, t, frames, diffusion, low, high, worst) VALUES (?, ?, ?, ?, ?, ?, ?, ?)'),
+      end: options.readonly ? undefined : db.prepare('UPDATE runs SET state = \'ended\', ended = ?, final_report = ? WHERE id = ?'),
+      interrupt: options.readonly ? undefined : db.prepare('UPDATE runs SET state = \'ended\', interrupted = 1 WHERE state = \'live\''),
+      framePage: db.prepare('SELECT idx, t, count, x, y, z, id, intensity FROM frames WHERE run = ? AND idx > ? ORDER BY idx LIMIT ?'),
+      temperatures: db.prepare('SELECT t, celsius FROM temperatures WHERE run = ? ORDER BY t, rowid'),
+      tags: db.prepare('SELECT label, start, end, note FROM tags WHERE run = ? ORDER BY rowid'),
+      alerts: db.prepare('SELECT id, kind, level, start, end, message, detail FROM alerts WHERE run = ? ORDER BY rowid'),
+    };
+  }
+
+  /** Marks runs left live by a previous process as ended and interrupted; returns their number. */
+  markInterrupted(): number {
+    return this.statements.interrupt!.run().changes;
+  }
+
+  /** The stored metadata of a run, or undefined. */
+  run(id: string): RunRecord | undefined {
+    const row = this.statements.run.get(id) as Record<string, unknown> | undefined;
+    if (!row) return undefined;
+    return {
+      id: row.id as string,
+      label: row.label as string,
+      settings: row.settings as string,
+      state: row.state as 'live' | 'ended',
+      started: row.started as string,
+      frames: row.frames as number,
+      bytes: row.bytes as number,
+      lastIndex: (row.last_index as number | null) ?? null,
+      worst: (row.worst as AlertLevel | null) ?? null,
+      interrupted: row.interrupted === 1,
+      finalReport: (row.final_report as string | null) ?? null,
+    };
+  }
+
+  /** Every recorded run, oldest first (the rows of `GET /api/runs`). */
+  listRuns(): RunListEntry[] {
+    return this.statements.list.all() as RunListEntry[];
+  }
+
+  /** Creates a run, or reopens a recorded one (state live again). */
+  openRun(id: string, label: string, settings: string, started: string): void {
+    this.statements.insertRun!.run(id, label, settings, started);
+  }
+
+  /** Ends a run, keeping its final report (JSON text). */
+  endRun(id: string, finalReport: string, ended: string): void {
+    this.statements.end!.run(ended, finalReport, id);
+  }
+
+  /** Packs a frame into a row (copies its arrays). O(count). */
+  frameRow(run: string, frame: Frame): FrameRow {
+    const n = frame.count;
+    const row: FrameRow = {
+      kind: 'frame', run, index: frame.index, t: frame.t, count: n,
+      x: blob(frame.x, n), y: blob(frame.y, n),
+      z: frame.z ? blob(frame.z, n) : null,
+      id: frame.id ? blob(frame.id, n) : null,
+      intensity: frame.intensity ? blob(frame.intensity, n) : null,
+      bytes: 0,
+    };
+    row.bytes = row.x.length + row.y.length + (row.z?.length ?? 0) + (row.id?.length ?? 0) + (row.intensity?.length ?? 0);
+    return row;
+  }
+
+  /** Writes one batch of frames and readings in a single transaction. */
+  writeBatch(rows: readonly RecordRow[]): void {
+    if (rows.length === 0) return;
+    const s = this.statements;
+    this.db.transaction(() => {
+      const perRun = new Map<string, { frames: number; bytes: number; last: number }>();
+      for (const row of rows) {
+        if (row.kind === 'temperature') {
+          s.temperature!.run(row.run, row.t, row.celsius);
+          continue;
+        }
+        const written = s.frame!.run(row.run, row.index, row.t, row.count, row.x, row.y, row.z, row.id, row.intensity).changes;
+        const entry = perRun.get(row.run) ?? { frames: 0, bytes: 0, last: -1 };
+        entry.frames += written;
+        entry.bytes += written * row.bytes;
+        entry.last = Math.max(entry.last, row.index);
+        perRun.set(row.run, entry);
+      }
+      for (const [run, entry] of perRun) s.runFrames!.run(entry.frames, entry.bytes, entry.last, run);
+    })();
+  }
+
+  /** Records a tag. */
+  writeTag(run: string, tag: Tag): void {
+    this.statements.tag!.run(run, tag.label, tag.start, tag.end, tag.note);
+  }
+
+  /** Records an alert (insert, or update its level and end). */
+  writeAlert(run: string, alert: Alert, worst: AlertLevel | null): void {
+    this.statements.alert!.run(run, alert.id, alert.kind, alert.level, alert.start, alert.end, alert.message, JSON.stringify(alert.detail));
+    this.statements.worst!.run(worst, run);
+  }
+
+  /** Records a periodic summary row. */
+  writeSummary(run: string, at: string, t: number | null, frames: number, diffusion: { value: number; ci95: [number, number] } | null, worst: AlertLevel | null): void {
+    this.statements.summary!.run(run, at, t, frames, diffusion?.value ?? null, diffusion?.ci95[0] ?? null, diffusion?.ci95[1] ?? null, worst);
+  }
+
+  /**
+   * The recorded frames of a run in index order, as fresh Frames (µm, s). Lazy, read in pages of
+   * `pageRows` with no statement left open between pages, so the recording can go on writing
+   * while an export is paused on a slow client.
+   */
+  *frames(run: string, pageRows = 512): Generator<Frame> {
+    let after = -1;
+    for (;;) {
+      const rows = this.statements.framePage.all(run, after, pageRows) as Record<string, unknown>[];
+      for (const row of rows) {
+        const count = row.count as number;
+        const frame: Frame = { index: row.idx as number, t: row.t as number, count, x: floats(row.x as Buffer, count), y: floats(row.y as Buffer, count) };
+        if (row.z) frame.z = floats(row.z as Buffer, count);
+        if (row.intensity) frame.intensity = floats(row.intensity as Buffer, count);
+        if (row.id) {
+          const id = new Uint32Array(count);
+          new Uint8Array(id.buffer).set((row.id as Buffer).subarray(0, count * 4));
+          frame.id = id;
+        }
+        after = frame.index;
+        yield frame;
+      }
+      if (rows.length < pageRows) return;
+    }
+  }
+
+  /** The recorded temperature log of a run, in time order. */
+  temperatures(run: string): { t: number; celsius: number }[] {
+    return this.statements.temperatures.all(run) as { t: number; celsius: number }[];
+  }
+
+  /** The recorded tags of a run, in arrival order. */
+  tags(run: string): Tag[] {
+    return this.statements.tags.all(run) as Tag[];
+  }
+
+  /** The recorded alerts of a run. */
+  alerts(run: string): Alert[] {
+    return (this.statements.alerts.all(run) as (Omit<Alert, 'detail'> & { detail: string })[]).map((a) => ({ ...a, detail: JSON.parse(a.detail) as Record<string, unknown> }));
+  }
+
+  /** Closes the database (pending WAL content is checkpointed by SQLite). */
+  close(): void {
+    this.db.close();
+  }
+}

@@ -1,0 +1,166 @@
+import type { Frame } from '../../src/frame.js';
+import { Recorder } from '../../server/recorder.js';
+import type { RigRunMessage } from '../../server/protocol.js';
+import type { RunSettings } from '../../server/rigMessageFields.js';
+import { IoError } from '../io/ioError.js';
+import { readCentroids } from '../io/readCentroids.js';
+import { readTags } from '../io/readTags.js';
+import { readTemperatureLog } from '../io/readTemperatureLog.js';
+import { RigClient } from '../rig/rigClient.js';
+import { streamToServer, type RigEvent } from '../rig/streamToServer.js';
+import { numberOption, UsageError } from './usageError.js';
+
+/** The flags of `jostle replay`. */
+export interface ReplayFlags {
+  url: string;
+  token?: string;
+  speed?: string;
+  fast?: boolean;
+  data?: string;
+  run?: string;
+  as?: string;
+  label?: string;
+  pixelSize?: string;
+  frameInterval?: string;
+  exposure?: string;
+  radius?: string;
+  temperature?: string;
+  medium?: string;
+  temperatureLog?: string;
+  tags?: string;
+  json?: boolean;
+}
+
+function copyFrame(frame: Frame): Frame {
+  const n = frame.count;
+  const out: Frame = { index: frame.index, t: frame.t, count: n, x: frame.x.slice(0, n), y: frame.y.slice(0, n) };
+  if (frame.z) out.z = frame.z.slice(0, n);
+  if (frame.id) out.id = frame.id.slice(0, n);
+  if (frame.intensity) out.intensity = frame.intensity.slice(0, n);
+  return out;
+}
+
+function medianStep(frames: Frame[]): number | undefined {
+  const steps: number[] = [];
+  for (let i = 1; i < Math.min(frames.length, 64); i++) if (frames[i].t > frames[i - 1].t) steps.push(frames[i].t - frames[i - 1].t);
+  steps.sort((a, b) => a - b);
+  return steps.length > 0 ? steps[Math.floor(steps.length / 2)] : undefined;
+}
+
+/** Merges frames, readings and tags into one data-clock stream (readings before a frame at the same t). */
+function mergeEvents(frames: Frame[], readings: { t: number; celsius: number }[], tags: RigEvent[]): RigEvent[] {
+  const events: RigEvent[] = [...tags];
+  let next = 0;
+  for (const frame of frames) {
+    while (next < readings.length && readings[next].t <= frame.t) events.push({ type: 'temperature', ...readings[next++] });
+    events.push({ type: 'frame', frame });
+  }
+  while (next < readings.length) events.push({ type: 'temperature', ...readings[next++] });
+  return events;
+}
+
+async function fromCsv(file: string, flags: ReplayFlags): Promise<{ run: RigRunMessage; events: RigEvent[] }> {
+  const frames: Frame[] = [];
+  const pixelSize = numberOption('--pixel-size', flags.pixelSize, (n) => n > 0) ?? 1;
+  let frameInterval = numberOption('--frame-interval', flags.frameInterval, (n) => n > 0);
+  try {
+    await readCentroids(file, { pixelSize, frameInterval }, (frame) => frames.push(copyFrame(frame)));
+  } catch (error) {
+    if (error instanceof IoError) throw new UsageError(error.message, error.code);
+    throw error;
+  }
+  frameInterval ??= medianStep(frames);
+  if (frameInterval === undefined) throw new UsageError('the frame interval cannot be found from the file: give --frame-interval', 'JOSTLE_E_OPTION');
+  const readings = flags.temperatureLog ? (await readTemperatureLog(flags.temperatureLog)).readings.slice().sort((a, b) => a.t - b.t) : [];
+  const tags: RigEvent[] = flags.tags ? (await readTags(flags.tags)).tags.map((tag) => ({ type: 'tag' as const, tag })) : [];
+  const run: RigRunMessage = { type: 'run', frameInterval, label: flags.label ?? file };
+  const extra = {
+    exposure: numberOption('--exposure', flags.exposure, (n) => n >= 0),
+    radius: numberOption('--radius', flags.radius, (n) => n > 0),
+    temperature: numberOption('--temperature', flags.temperature),
+    medium: flags.medium,
+    run: flags.as,
+  };
+  for (const [k, v] of Object.entries(extra)) if (v !== undefined) (run as unknown as Record<string, unknown>)[k] = v;
+  return { run, events: mergeEvents(frames, readings, tags) };
+}
+
+function fromRecording(flags: ReplayFlags): { run: RigRunMessage; events: RigEvent[]; close: () => void } {
+  let recorder: Recorder;
+  try {
+    recorder = new Recorder(flags.data as string, { readonly: true });
+  } catch {
+    throw new UsageError(`no recording in ${flags.data}`, 'JOSTLE_E_FILE');
+  }
+  const record = recorder.run(flags.run as string);
+  if (!record) {
+    recorder.close();
+    throw new UsageError(`no run '${flags.run}' in ${flags.data}`, 'JOSTLE_E_UNKNOWN_RUN');
+  }
+  const settings = JSON.parse(record.settings) as RunSettings;
+  const run: RigRunMessage = { type: 'run', ...settings.pipeline, label: flags.label ?? record.label, run: flags.as };
+  if (flags.as === undefined) delete run.run;
+  const tags: RigEvent[] = recorder.tags(record.id).map((tag) => ({ type: 'tag', tag }));
+  const events = mergeEvents([...recorder.frames(record.id)], recorder.temperatures(record.id), tags);
+  return { run, events, close: () => recorder.close() };
+}
+
+/**
+ * `jostle replay`: streams a centroid CSV (CONTRACTS §2) or a recorded run (`--data <folder>
+ * --run <id>`) to a server as a rig would, at real speed (`--speed k`: k× faster) or `--fast`.
+ * Tags are sent at the start of the stream. Prints the run id and what was sent.
+ */
+export async function runReplay(file: string | undefined, flags: ReplayFlags, stdout: NodeJS.WritableStream): Promise<void> {
+  const speed = numberOption('--speed', flags.speed, (n) => n > 0) ?? 1;
+  if (flags.speed !== undefined && flags.fast) throw new UsageError('options --speed and --fast conflict');
+  if ((flags.data === undefined) !== (flags.run === undefined)) throw new UsageError('options --data and --run go together');
+  if (file === undefined && flags.run === undefined) throw new UsageError('give a centroid CSV, or --data <folder> --run <id>');
+  if (file !== undefined && flags.run !== undefined) throw new UsageError('give either a centroid CSV or --data/--run, not both');
+  const source = file !== undefined ? { ...(await fromCsv(file, flags)), close: () => undefined } : fromRecording(flags);
+  try {
+    const summary = await streamRun(flags.url, flags.token, source.run, source.events, { speed, fast: flags.fast === true });
+    stdout.write(flags.json ? `${JSON.stringify(summary)}\n` : `run ${summary.run}: ${summary.frames} frames, ${summary.centroids} centroids sent, ${summary.alerts} alerts, ${summary.errors} rejected\n`);
+  } finally {
+    source.close();
+  }
+}
+
+/** The rig URL and token from `--url` (a `?token=` there is used when `--token` is absent). */
+export function rigEndpoint(url: string, token: string | undefined): { url: string; token: string | undefined } {
+  let parsed: URL;
+  try {
+    parsed = new URL(url);
+  } catch {
+    throw new UsageError(`option --url needs a ws:// address, got '${url}'`);
+  }
+  if (parsed.protocol !== 'ws:' && parsed.protocol !== 'wss:') throw new UsageError(`option --url needs a ws:// address, got '${url}'`);
+  const fromUrl = parsed.searchParams.get('token') ?? undefined;
+  parsed.search = '';
+  if (parsed.pathname === '/' || parsed.pathname === '') parsed.pathname = '/rig';
+  return { url: parsed.toString(), token: token ?? process.env.JOSTLE_TOKEN ?? fromUrl };
+}
+
+/** Connects, opens the run, streams the events, ends the run and closes. */
+export async function streamRun(
+  url: string,
+  token: string | undefined,
+  run: RigRunMessage,
+  events: Iterable<RigEvent>,
+  pacing: { speed: number; fast: boolean; stopped?: () => boolean },
+): Promise<{ run: string; frames: number; centroids: number; alerts: number; errors: number }> {
+  const endpoint = rigEndpoint(url, token);
+  let rig: RigClient;
+  try {
+    rig = await RigClient.connect(endpoint.url, { token: endpoint.token });
+  } catch (error) {
+    throw new UsageError(`cannot connect to ${endpoint.url}: ${(error as Error).message}`, 'JOSTLE_E_CONNECT');
+  }
+  try {
+    const accepted = await rig.open(run);
+    const sent = await streamToServer(events, rig, pacing);
+    await rig.end();
+    return { run: accepted.run, ...sent, alerts: rig.alerts.length, errors: rig.errors.length };
+  } finally {
+    await rig.close();
+  }
+}

@@ -1,0 +1,67 @@
+import { startServer, type JostleServer } from '../../server/startServer.js';
+import type { ServerOptions } from '../../server/serverOptions.js';
+import { numberOption, UsageError } from './usageError.js';
+
+/** The flags of `jostle serve` as commander hands them over. */
+export interface ServeFlags {
+  host: string;
+  port: string;
+  data: string;
+  token?: string;
+  allowRemote?: boolean;
+  maxPayload?: string;
+  quota?: string;
+  heartbeat?: string;
+}
+
+/** Server options from the flags (RangeError from the server becomes a usage error). */
+export function serveOptions(flags: ServeFlags): ServerOptions {
+  const positiveInteger = (n: number) => Number.isInteger(n) && n > 0;
+  return {
+    host: flags.host,
+    port: numberOption('--port', flags.port, (n) => Number.isInteger(n) && n >= 0 && n <= 65535),
+    data: flags.data,
+    token: flags.token ?? process.env.JOSTLE_TOKEN,
+    allowRemote: flags.allowRemote === true,
+    maxPayloadBytes: numberOption('--max-payload', flags.maxPayload, positiveInteger),
+    quotaBytes: numberOption('--quota', flags.quota, positiveInteger),
+    heartbeatMs: numberOption('--heartbeat', flags.heartbeat, positiveInteger),
+  };
+}
+
+/** Starts the server, mapping bad options to a usage error (exit 2). */
+export async function startFromFlags(options: ServerOptions): Promise<JostleServer> {
+  try {
+    return await startServer(options);
+  } catch (error) {
+    if (error instanceof RangeError) throw new UsageError(error.message, 'JOSTLE_E_OPTION');
+    const code = (error as { code?: string }).code;
+    if (code === 'EADDRINUSE' || code === 'EACCES') throw new UsageError(`cannot listen on ${options.host}:${options.port} (${code})`, 'JOSTLE_E_LISTEN');
+    throw error;
+  }
+}
+
+/** Resolves on SIGINT or SIGTERM. */
+export function untilSignal(): Promise<void> {
+  return new Promise((resolve) => {
+    const done = () => {
+      process.off('SIGINT', done);
+      process.off('SIGTERM', done);
+      resolve();
+    };
+    process.on('SIGINT', done);
+    process.on('SIGTERM', done);
+  });
+}
+
+/**
+ * `jostle serve` (CONTRACTS §1): starts the live server, prints the dashboard URL actually bound
+ * (with `?token=`) as the first line on stdout, and runs until SIGINT or SIGTERM, then closes
+ * cleanly (recording flushed).
+ */
+export async function runServe(flags: ServeFlags, stdout: NodeJS.WritableStream): Promise<void> {
+  const server = await startFromFlags(serveOptions(flags));
+  stdout.write(`${server.url}\n`);
+  await untilSignal();
+  await server.close();
+}

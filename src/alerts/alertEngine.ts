@@ -23,13 +23,20 @@ const LEVEL_RANK: Record<AlertLevel, number> = { info: 0, warn: 1, stop: 2 };
 interface OpenAlert {
   alert: Alert;
   clearSince: number | null;
+  /** Level changes so far, oldest first (bounded), kept in `detail.levels`. */
+  levels: { t: number; level: AlertLevel }[];
 }
+
+/** Level changes kept per alert in `detail.levels`. */
+const MAX_LEVEL_CHANGES = 32;
 
 /**
  * Turns detectors' condition reports into alerts with ids, opening and closing times, and
  * hysteresis: one condition (one `key`) gives one alert, whose `start` is the time the condition
  * was first declared and whose `end` is set once it has stayed clear for `clearHoldSeconds`.
- * The level of an open alert follows the condition (up at once, down when the condition says so).
+ * The level of an open alert follows the condition (up at once, down when the condition says so);
+ * `detail.levels` keeps its level changes with their times (at most 32), so the time an alert
+ * first reached `warn` can be read even when it opened as `info`.
  *
  * Pure: time comes in with each condition (`Condition.t`). O(1) per condition.
  *
@@ -144,9 +151,9 @@ export class AlertEngine {
         start: condition.t,
         end: null,
         message: condition.message,
-        detail,
+        detail: { ...detail, levels: [{ t: condition.t, level: condition.level }] },
       };
-      this.open.set(condition.key, { alert, clearSince: null });
+      this.open.set(condition.key, { alert, clearSince: null, levels: [{ t: condition.t, level: condition.level }] });
       this.all.push(alert);
       this.trim();
       changes.push({ change: 'open', alert });
@@ -154,9 +161,14 @@ export class AlertEngine {
     }
     entry.clearSince = null;
     const levelChanged = entry.alert.level !== condition.level;
+    if (levelChanged && entry.levels.length < MAX_LEVEL_CHANGES) entry.levels.push({ t: condition.t, level: condition.level });
     entry.alert.level = condition.level;
     entry.alert.message = condition.message;
-    entry.alert.detail = { ...detail, acknowledged: this.acknowledged.has(entry.alert.id) || undefined };
+    entry.alert.detail = {
+      ...detail,
+      levels: entry.levels.slice(),
+      ...(this.acknowledged.has(entry.alert.id) ? { acknowledged: true } : {}),
+    };
     if (levelChanged) changes.push({ change: 'level', alert: entry.alert });
   }
 

@@ -26,7 +26,8 @@ const bench = {
  * - `vibration`: a 7.3 Hz, 80 nm (0-to-peak) shake along y from 120 s (4 minutes in all).
  * - `heating`: the sample warms by 3 K/min from 150 s while the sensor log stays at 21.0 °C (6 minutes).
  * - `mismatch`: the sample is 5 K warmer than reported, all run (3 minutes).
- * - `clumping`: a dense lot (BF-PS-1188-R, re-suspended) whose beads start to stick at 10 s.
+ * - `clumping`: a dense lot (BF-PS-1188-R, re-suspended) whose beads start to stick at 90 s, after
+ *   the clumping detector's 60 s baseline (3 minutes).
  * - `focus`: the focus slips at 120 s and σ rises from 30 nm to 120 nm (D unchanged; 3 minutes).
  * - `dropped-frames`: dropped bursts, duplicates, timestamp jitter and a clock set back at 45 s.
  * - `crowded`: a dense hard-core suspension (no sticking): a negative control for clumping.
@@ -46,10 +47,10 @@ export const scenarios: Record<string, SimulationOptions> = {
   clumping: {
     ...bench,
     seed: 2205,
-    frames: 2400,
+    frames: 3600,
     particles: 120,
     field: { width: 60, height: 60 },
-    clumping: { start: 10, stickProbability: 0.3, contactDistance: 1.0 },
+    clumping: { start: 90, stickProbability: 0.3, contactDistance: 1.0 },
     minResolvable: 1.1,
   },
   focus: { ...bench, seed: 2206, frames: 3600, focus: { start: 120, localizationError: 0.12 } },

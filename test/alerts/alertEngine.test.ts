@@ -64,3 +64,16 @@ describe('AlertEngine', () => {
     expect(engine.acknowledge('nope')).toBe(false);
   });
 });
+
+describe('AlertEngine level history', () => {
+  it('keeps the time of each level change in detail.levels', () => {
+    const engine = new AlertEngine();
+    engine.push([{ key: 'a', kind: 'drift', level: 'info', t: 1, message: 'm', statistic: { name: 'z', value: 1, threshold: 1 }, falseAlarm: {}, effect: null }]);
+    engine.push([{ key: 'a', kind: 'drift', level: 'warn', t: 7, message: 'm', statistic: { name: 'z', value: 1, threshold: 1 }, falseAlarm: {}, effect: null }]);
+    expect(engine.alerts()[0].start).toBe(1);
+    expect(engine.alerts()[0].detail.levels).toEqual([
+      { t: 1, level: 'info' },
+      { t: 7, level: 'warn' },
+    ]);
+  });
+});

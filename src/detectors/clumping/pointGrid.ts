@@ -1,0 +1,196 @@
+/**
+ * A uniform grid over a set of 2-D points (a bucket index built by counting sort), reused from
+ * frame to frame: the clumping detector's close-pair search and the nearest-neighbour search of
+ * the Clark–Evans test run on it. Building it is O(N + cells) with no allocation in the steady
+ * state (buffers grow by doubling), where a kd-tree is rebuilt in O(N log N) every frame; a
+ * query visits only the cells its disc overlaps. The cell count is capped at about 4N, so memory
+ * stays O(N) whatever the spread of the points (cells then grow beyond the requested size).
+ *
+ * After `build`, the points of cell (c, r) are `order[cellStart[k]] … order[cellStart[k + 1] − 1]`
+ * with k = r·columns + c, in ascending point index.
+ *
+ * @example
+ * const grid = new PointGrid();
+ * grid.build(Float64Array.of(0, 0.5, 9), Float64Array.of(0, 0, 9), 3, 1);
+ * grid.pairsWithin(Float64Array.of(0, 0.5, 9), Float64Array.of(0, 0, 9), 0, 1, out) // → 1 (out[0] = 1)
+ */
+export class PointGrid {
+  /** Side of a cell, µm (≥ the size asked for). */
+  cellSize = 1;
+  /** Lower-left corner of the grid, µm. */
+  xMin = 0;
+  yMin = 0;
+  columns = 0;
+  rows = 0;
+  /** Start of each cell's run in `order` (columns·rows + 1 entries used). */
+  cellStart: Int32Array = new Int32Array(0);
+  /** Point indices sorted by cell. */
+  order: Int32Array = new Int32Array(0);
+  private cellOf: Int32Array = new Int32Array(0);
+
+  /**
+   * Buckets the first `count` points (all finite) into square cells of side ≥ `cellSize` µm.
+   * O(count + cells).
+   */
+  build(x: ArrayLike<number>, y: ArrayLike<number>, count: number, cellSize: number): void {
+    let xMin = Infinity;
+    let xMax = -Infinity;
+    let yMin = Infinity;
+    let yMax = -Infinity;
+    for (let i = 0; i < count; i++) {
+      const a = x[i];
+      const b = y[i];
+      if (a < xMin) xMin = a;
+      if (a > xMax) xMax = a;
+      if (b < yMin) yMin = b;
+      if (b > yMax) yMax = b;
+    }
+    if (!(count > 0)) {
+      xMin = 0;
+      xMax = 0;
+      yMin = 0;
+      yMax = 0;
+    }
+    let size = cellSize > 0 && Number.isFinite(cellSize) ? cellSize : 1;
+    const cap = Math.max(16, 4 * count);
+    // Cap the cell count (memory and build time O(N)): widen the cells when needed.
+    while (Math.floor((xMax - xMin) / size + 1) * Math.floor((yMax - yMin) / size + 1) > cap) size *= 2;
+    const columns = Math.floor((xMax - xMin) / size) + 1;
+    const rows = Math.floor((yMax - yMin) / size) + 1;
+    const cells = columns * rows;
+    this.cellSize = size;
+    this.xMin = xMin;
+    this.yMin = yMin;
+    this.columns = columns;
+    this.rows = rows;
+    if (this.cellStart.length < cells + 1) this.cellStart = new Int32Array(2 * (cells + 1));
+    if (this.order.length < count) {
+      this.order = new Int32Array(2 * count);
+      this.cellOf = new Int32Array(2 * count);
+    }
+    const start = this.cellStart;
+    const cellOf = this.cellOf;
+    start.fill(0, 0, cells + 1);
+    for (let i = 0; i < count; i++) {
+      const c = Math.min(columns - 1, Math.floor((x[i] - xMin) / size));
+      const r = Math.min(rows - 1, Math.floor((y[i] - yMin) / size));
+      const k = r * columns + c;
+      cellOf[i] = k;
+      start[k + 1]++;
+    }
+    for (let k = 0; k < cells; k++) start[k + 1] += start[k];
+    // Counting sort, stable: ascending point index within a cell. cellOf becomes the write cursor.
+    const order = this.order;
+    for (let i = 0; i < count; i++) {
+      const k = cellOf[i];
+      order[start[k]] = i;
+      start[k]++;
+    }
+    // undo the cursor shift: start[k] now holds the end of cell k
+    for (let k = cells; k > 0; k--) start[k] = start[k - 1];
+    start[0] = 0;
+  }
+
+  /**
+   * Points j > i within distance `r` µm of point i (d² ≤ r², as a kd-tree radius query), written
+   * to `out` in ascending j; returns how many, or −(how many) when `out` is too short (grow it
+   * and ask again). Requires `r` ≤ cellSize (the 3 × 3 cells around i). O(points nearby).
+   */
+  pairsWithin(x: ArrayLike<number>, y: ArrayLike<number>, i: number, r: number, out: Uint32Array): number {
+    const size = this.cellSize;
+    const columns = this.columns;
+    const rows = this.rows;
+    const qx = x[i];
+    const qy = y[i];
+    const c0 = Math.min(columns - 1, Math.floor((qx - this.xMin) / size));
+    const r0 = Math.min(rows - 1, Math.floor((qy - this.yMin) / size));
+    const r2 = r * r;
+    const start = this.cellStart;
+    const order = this.order;
+    let found = 0;
+    for (let row = Math.max(0, r0 - 1); row <= Math.min(rows - 1, r0 + 1); row++) {
+      for (let column = Math.max(0, c0 - 1); column <= Math.min(columns - 1, c0 + 1); column++) {
+        const k = row * columns + column;
+        for (let s = start[k]; s < start[k + 1]; s++) {
+          const j = order[s];
+          if (j <= i) continue;
+          const dx = x[j] - qx;
+          const dy = y[j] - qy;
+          if (dx * dx + dy * dy > r2) continue;
+          if (found < out.length) out[found] = j;
+          found++;
+        }
+      }
+    }
+    if (found > out.length) return -found;
+    // ascending j (a handful of entries: insertion sort)
+    for (let a = 1; a < found; a++) {
+      const v = out[a];
+      let b = a - 1;
+      while (b >= 0 && out[b] > v) {
+        out[b + 1] = out[b];
+        b--;
+      }
+      out[b + 1] = v;
+    }
+    return found;
+  }
+
+  /**
+   * Nearest other point to point i: searches square rings of cells outward until no unsearched
+   * cell can hold a closer point. Returns the index (−1 when there is no other point) and writes
+   * the squared distance, µm², to `distance2[0]`. O(points in the rings searched).
+   */
+  nearest(x: ArrayLike<number>, y: ArrayLike<number>, i: number, distance2: Float64Array): number {
+    const size = this.cellSize;
+    const columns = this.columns;
+    const rows = this.rows;
+    const qx = x[i];
+    const qy = y[i];
+    const c0 = Math.min(columns - 1, Math.floor((qx - this.xMin) / size));
+    const r0 = Math.min(rows - 1, Math.floor((qy - this.yMin) / size));
+    const start = this.cellStart;
+    const order = this.order;
+    let best = Infinity;
+    let bestJ = -1;
+    const reach = Math.max(columns, rows);
+    for (let ring = 0; ring <= reach; ring++) {
+      const rowLow = r0 - ring;
+      const rowHigh = r0 + ring;
+      const columnLow = c0 - ring;
+      const columnHigh = c0 + ring;
+      for (let row = Math.max(0, rowLow); row <= Math.min(rows - 1, rowHigh); row++) {
+        const edgeRow = row === rowLow || row === rowHigh;
+        // on the ring's top and bottom rows every cell; on the others only the two side cells
+        const step = edgeRow ? 1 : columnHigh - columnLow;
+        for (let column = columnLow; column <= columnHigh; column += step > 0 ? step : 1) {
+          if (column < 0 || column >= columns) continue;
+          const k = row * columns + column;
+          for (let s = start[k]; s < start[k + 1]; s++) {
+            const j = order[s];
+            if (j === i) continue;
+            const dx = x[j] - qx;
+            const dy = y[j] - qy;
+            const d2 = dx * dx + dy * dy;
+            if (d2 < best || (d2 === best && j < bestJ)) {
+              best = d2;
+              bestJ = j;
+            }
+          }
+        }
+      }
+      if (bestJ >= 0) {
+        // Every unsearched point lies outside the searched square of cells: at least this far.
+        const left = qx - (this.xMin + columnLow * size);
+        const right = this.xMin + (columnHigh + 1) * size - qx;
+        const bottom = qy - (this.yMin + rowLow * size);
+        const top = this.yMin + (rowHigh + 1) * size - qy;
+        // a small margin for the rounding of the cell assignment
+        const clearance = Math.min(left, right, bottom, top) - 1e-9 * size;
+        if (clearance > 0 && best <= clearance * clearance) break;
+      }
+    }
+    distance2[0] = best;
+    return bestJ;
+  }
+}

@@ -94,8 +94,11 @@ export class TracksDetector implements Detector<TracksSummary> {
   readonly name = 'tracks';
   private readonly options: TracksOptions;
   private windowStart = Number.NaN;
-  private windowEndedSteps = 0;
-  private windowLongSteps = 0;
+  // Steps made in the current window, by track id, and each track's length: the final length for
+  // tracks that ended, the length so far for live ones. Counting only ended tracks would bias the
+  // long-track fraction short (long tracks have not ended yet).
+  private readonly windowTrackSteps = new Map<number, number>();
+  private readonly windowTrackLength = new Map<number, number>();
   private windowEnded = 0;
   private windowCrowdingSum = 0;
   private windowCrowdingFrames = 0;
@@ -163,7 +166,14 @@ export class TracksDetector implements Detector<TracksSummary> {
       }
     }
     if (Number.isNaN(this.firstFrameTime)) this.firstFrameTime = t;
+    for (let i = 0; i < steps.stepCount; i++) {
+      const p = steps.stepParticle[i];
+      const id = steps.trackId[p];
+      this.windowTrackSteps.set(id, (this.windowTrackSteps.get(id) ?? 0) + 1);
+      this.windowTrackLength.set(id, steps.trackLength[p]);
+    }
     for (let i = 0; i < steps.endedCount; i++) {
+      if (this.windowTrackSteps.has(steps.endedTrackId[i])) this.windowTrackLength.set(steps.endedTrackId[i], steps.endedLength[i]);
       // A track that was already there on the first frame is left-censored (its true length is unknown and
       // longer): it would bias the length baseline short, so it is left out of the length statistics. The end is
       // reported one or more frames after the last position (the linker's gap allowance), hence the 3-frame margin.
@@ -200,8 +210,6 @@ export class TracksDetector implements Detector<TracksSummary> {
     this.recentLengths.push(length);
     if (this.recentLengths.length > 1000) this.recentLengths = this.recentLengths.slice(-500);
     this.windowEnded++;
-    this.windowEndedSteps += stepsOfTrack;
-    if (stepsOfTrack >= this.minimumSteps) this.windowLongSteps += stepsOfTrack;
     if (Number.isNaN(this.firstEndTime)) this.firstEndTime = t;
     const o = this.options;
     if (!this.chart) {
@@ -315,8 +323,14 @@ export class TracksDetector implements Detector<TracksSummary> {
       epsilon = (context.localizationError * context.localizationError) / (context.diffusion * dt) - 2 * context.blur;
     }
     this.minimumSteps = minimumTrackSteps(Math.max(-0.5, epsilon), o.trackPrecision);
-    if (this.windowEnded >= o.minimumEndedTracks && this.windowEndedSteps > 0) {
-      this.longFraction = this.windowLongSteps / this.windowEndedSteps;
+    let windowSteps = 0;
+    let windowLong = 0;
+    for (const [id, n] of this.windowTrackSteps) {
+      windowSteps += n;
+      if ((this.windowTrackLength.get(id) ?? 0) - 1 >= this.minimumSteps) windowLong += n;
+    }
+    if (this.windowEnded >= o.minimumEndedTracks && windowSteps > 0) {
+      this.longFraction = windowLong / windowSteps;
       const short = this.longFraction < o.minimumLongFraction;
       this.emit(out, 'tracks:short', short ? 'warn' : null, t,
         short
@@ -340,8 +354,8 @@ export class TracksDetector implements Detector<TracksSummary> {
     }
     this.windowStart = t;
     this.windowEnded = 0;
-    this.windowEndedSteps = 0;
-    this.windowLongSteps = 0;
+    this.windowTrackSteps.clear();
+    this.windowTrackLength.clear();
     this.windowCrowdingSum = 0;
     this.windowCrowdingFrames = 0;
   }

@@ -204,7 +204,6 @@ export class TracksDetector implements Detector<TracksSummary> {
 
   private ended(length: number, t: number, out: Condition[]): void {
     if (!(length >= 1)) return;
-    const stepsOfTrack = length - 1;
     this.endedTotal++;
     this.lengthSum += length;
     this.recentLengths.push(length);

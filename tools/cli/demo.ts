@@ -22,7 +22,10 @@ export async function runDemo(flags: DemoFlags, stdout: NodeJS.WritableStream, s
   const port = Number(flags.port);
   const speed = flags.speed === undefined ? 1 : Number(flags.speed);
   const server = await startFromFlags({ port, data: flags.data, token: flags.token ?? process.env.JOSTLE_TOKEN });
-  stdout.write(`${server.url}\n`);
+  const started = new Date().toISOString().replace(/[-:]/g, '').replace(/\..*$/, '');
+  const idFor = (round: number) => `demo-${started}-${round}`;
+  // The printed URL opens the page on the demo's first run (the run list is one key away: g).
+  stdout.write(`${server.url}${server.url.includes('?') ? '&' : '?'}run=${idFor(1)}\n`);
   stderr.write('jostle demo: streaming the demo scenario (Brackenfield bench, lot BF-PS-1188) in real time; Ctrl-C stops\n');
   let stopped = false;
   const signal = untilSignal().then(() => {
@@ -31,7 +34,7 @@ export async function runDemo(flags: DemoFlags, stdout: NodeJS.WritableStream, s
   const scenario = scenarios.demo;
   const loop = (async () => {
     for (let round = 1; !stopped; round++) {
-      const id = `demo-${new Date().toISOString().replace(/[-:]/g, '').replace(/\..*$/, '')}-${round}`;
+      const id = idFor(round);
       try {
         await streamRun(`ws://127.0.0.1:${server.port}/rig`, server.token, simulationRunMessage(scenario, id, `demo round ${round}`), simulationEvents(scenario), {
           speed,

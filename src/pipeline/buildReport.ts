@@ -678,7 +678,25 @@ function rolling(input: ReportInput, correction: CorrectionContext, plan: Estima
     from,
     to: input.lastTime,
     diffusion: segmentDiffusion(input, from, null, correction, plan),
+    msd: rollingMsd(input, from, correction),
   };
+}
+
+/** Ensemble MSD over the time blocks of the rolling window: [{ lag s, value µm², count }]. */
+function rollingMsd(input: ReportInput, from: number, correction: CorrectionContext): { lag: number; value: number; count: number }[] {
+  const blocks = input.blocks;
+  const layout = input.layout;
+  if (!blocks || !layout) return [];
+  const { stats } = blocks.sumOver(from, null);
+  const points: { lag: number; value: number; count: number }[] = [];
+  for (let l = 0; l < input.lags.length; l++) {
+    const count = stats[lagOffset(layout, l)];
+    if (!(count > 0)) continue;
+    let value = 0;
+    for (let a = 0; a < correction.dims; a++) value += correctedLagMsd(layout, stats, 0, l, input.lags[l], a, correction);
+    points.push({ lag: input.lags[l] * input.options.frameInterval, value, count });
+  }
+  return points;
 }
 
 /** D per time block (decimated to ≤ 600 points): t s, value, low, high µm²/s. */

@@ -176,3 +176,29 @@ describe('Pipeline', () => {
     expect(() => new Pipeline({ frameInterval: 0.01, radiusSd: 0.01 })).toThrow(/radiusSd/);
   });
 });
+
+describe('Pipeline rolling window and third axis', () => {
+  it('gives the rolling-window MSD over the last window only', () => {
+    // Free diffusion, no blur: MSD(τ) = 4Dτ in 2-D (estimators.md §1 with σ = 0, R = 0).
+    const frames = brownianFrames({ seed: 21, particles: 60, frames: 1200, frameInterval: 0.05, diffusion: 0.3 });
+    const report = run(frames, { frameInterval: 0.05, exposure: 0, rollingWindowSeconds: 20 });
+    const rolling = report.rolling as { msd: { lag: number; value: number; count: number }[]; from: number };
+    expect(rolling.from).toBeCloseTo(59.95 - 20, 6);
+    expect(rolling.msd[0].count).toBeLessThan(report.msd[0].count / 2);
+    expect(Math.abs(rolling.msd[0].value / (4 * 0.3 * 0.05) - 1)).toBeLessThan(0.05);
+  });
+
+  it('estimates D along z when frames carry z', () => {
+    const settings = { seed: 22, particles: 40, frames: 400, frameInterval: 0.05, diffusion: 0.3 };
+    const xy = brownianFrames(settings);
+    const zs = brownianFrames({ ...settings, seed: 23 });
+    const frames = xy.map((f, i) => ({ ...f, z: zs[i].x }));
+    const report = run(frames, { frameInterval: 0.05, exposure: 0 });
+    expect(report.input.dims).toBe(3);
+    const z = report.diffusion.perAxis.z!;
+    expect(z.ci95[0]).toBeLessThan(0.3);
+    expect(z.ci95[1]).toBeGreaterThan(0.3);
+    // MSD sums over three axes: 6Dτ
+    expect(Math.abs(report.msd[0].value / (6 * 0.3 * 0.05) - 1)).toBeLessThan(0.05);
+  });
+});

@@ -68,6 +68,14 @@ export type ResolvedPipelineOptions = Required<Omit<PipelineOptions, 'dims' | 'm
   temperature: number | undefined;
 };
 
+/** Every pipeline option's name (for checking settings files). */
+export const PIPELINE_OPTION_NAMES: readonly string[] = [
+  'frameInterval', 'exposure', 'dims', 'lagCount', 'maxLag', 'consecutiveLags', 'maxGapFrames', 'groups',
+  'jackknifeMinTracks', 'blockSeconds', 'maxBlocks', 'rollingWindowSeconds', 'driftCorrection', 'commonModeExcessZ',
+  'maxDisplacement', 'initialMaxDisplacement', 'radius', 'radiusSd', 'height', 'medium', 'temperature',
+  'maxTrackTable', 'minTrackSteps', 'targetPrecision', 'detectors',
+];
+
 const POSITIVE = ['frameInterval', 'blockSeconds', 'rollingWindowSeconds', 'initialMaxDisplacement', 'targetPrecision'] as const;
 const INTEGER_MIN_1 = ['lagCount', 'maxLag', 'consecutiveLags', 'groups', 'maxBlocks', 'maxTrackTable', 'minTrackSteps'] as const;
 

@@ -103,6 +103,34 @@ describe('jostle analyze', () => {
     expect(memory.out()).toMatch(/95 % CI/);
   }, 60_000);
 
+  it('takes detector thresholds from --set (dotted keys, JSON values) over --config, and lists them in provenance', async () => {
+    const config = join(folder, 'settings.json');
+    await writeFile(config, JSON.stringify({ detectors: { drift: { tolerance: 0.2 } }, lagCount: 12 }));
+    const memory = memoryIo();
+    const args = ['node', 'jostle', 'analyze', join(folder, 'clean.csv'), '--json', '--config', config, '--set', 'detectors.drift.tolerance=0.1', '--set', 'detectors.vibration=false'];
+    expect(await main(args, memory.io)).toBe(0);
+    const report = JSON.parse(memory.out()) as Report & { detectors: Record<string, unknown> };
+    const options = report.provenance.options as { lagCount: number; detectors: { drift: { tolerance: number }; vibration: boolean } };
+    expect(options.lagCount).toBe(12);
+    expect(options.detectors.drift.tolerance).toBe(0.1);
+    expect(report.msd.length).toBeLessThanOrEqual(12);
+    expect(report.detectors.vibration).toBeUndefined();
+    expect(report.detectors.drift).toBeDefined();
+  }, 60_000);
+
+  it('fills alerts, drift and the report fields for a drifting run (analyze --json)', async () => {
+    await writeSimulation(scenarios.drift, { csvPath: join(folder, 'drift.csv'), truthPath: join(folder, 'drift.truth.json') });
+    const memory = memoryIo();
+    expect(await main(['node', 'jostle', 'analyze', join(folder, 'drift.csv'), '--json', '--exposure', '0.01'], memory.io)).toBe(0);
+    const report = JSON.parse(memory.out()) as Report;
+    expect(report.alerts.some((a) => a.kind === 'drift' && a.level !== 'info')).toBe(true);
+    const v = report.drift.velocity!;
+    // over the whole run the mean velocity is (40/60)·(0.15, −0.05) µm/s: the creep starts at 20 s of 60 s
+    expect(v.ci95[0][0]).toBeLessThan(0.1);
+    expect(v.ci95[0][1]).toBeGreaterThan(0.1);
+    expect(Array.isArray(report.vibration.peaks)).toBe(true);
+  }, 60_000);
+
   describe('usage errors exit 2 with one line on stderr', () => {
     const cases: [string, string[], RegExp][] = [
       ['a missing file', ['analyze', '/nonexistent/file.csv'], /cannot|not found|no such/i],
@@ -110,6 +138,8 @@ describe('jostle analyze', () => {
       ['a bad number', ['analyze', 'x.csv', '--radius', 'big'], /--radius/],
       ['a bad medium', ['analyze', 'x.csv', '--medium', 'honey'], /honey/],
       ['--radius-sd without --radius', ['analyze', 'x.csv', '--radius-sd', '0.01'], /--radius/],
+      ['a --set without =', ['analyze', 'x.csv', '--set', 'lagCount'], /--set/],
+      ['an unknown setting', ['analyze', 'x.csv', '--set', 'lagcount=3'], /unknown setting lagcount/],
     ];
     for (const [what, args, message] of cases) {
       it(`for ${what}`, async () => {

@@ -3,7 +3,7 @@ import type { Frame } from '../../src/frame.js';
 import { createDetectors } from '../../src/detectors/createDetectors.js';
 import { refreshContext } from '../../src/pipeline/refreshContext.js';
 import { Pipeline } from '../../src/pipeline/pipeline.js';
-import type { PipelineOptions } from '../../src/pipeline/pipelineOptions.js';
+import { PIPELINE_OPTION_NAMES, type PipelineOptions } from '../../src/pipeline/pipelineOptions.js';
 import { parseMedium } from '../../src/physics/parseMedium.js';
 import type { Report } from '../../src/report.js';
 import type { Tag } from '../../src/tag.js';
@@ -28,6 +28,8 @@ export interface AnalyzeFlags {
   temperatureLog?: string;
   tags?: string;
   config?: string;
+  /** `key=value` settings, dotted keys into the config (e.g. `detectors.drift.tolerance=0.1`). */
+  set?: string[];
   progress?: boolean;
 }
 
@@ -44,7 +46,7 @@ export async function analyzeFile(
   flags: AnalyzeFlags,
   stderr: NodeJS.WriteStream = process.stderr,
 ): Promise<Report> {
-  const config = flags.config ? await readConfig(flags.config) : {};
+  const config = applySettings(flags.config ? await readConfig(flags.config) : {}, flags.set ?? []);
   const options = mergeOptions(config, flags);
   const tags: Tag[] = [];
   let tagRejections: unknown[] = [];
@@ -136,6 +138,8 @@ export function mergeOptions(config: Record<string, unknown>, flags: AnalyzeFlag
     temperature: numberOption('--temperature', flags.temperature),
     medium: flags.medium,
   };
+  const unknown = Object.keys(config).filter((key) => !PIPELINE_OPTION_NAMES.includes(key));
+  if (unknown.length > 0) throw new UsageError(`unknown setting ${unknown.join(', ')} in --config/--set`, 'JOSTLE_E_CONFIG');
   const merged: Record<string, unknown> = { ...config };
   for (const [key, value] of Object.entries(fromFlags)) if (value !== undefined) merged[key] = value;
   if (typeof merged.medium === 'string') {
@@ -150,6 +154,42 @@ export function mergeOptions(config: Record<string, unknown>, flags: AnalyzeFlag
   }
   if (merged.radiusSd !== undefined && merged.radius === undefined) throw new UsageError('option --radius-sd needs --radius');
   return merged as Omit<PipelineOptions, 'frameInterval'> & { frameInterval?: number };
+}
+
+/**
+ * Applies `--set key=value` settings to a config object (a copy): dotted keys make nested objects,
+ * values are read as JSON when they parse (numbers, true/false, arrays) and as text otherwise.
+ *
+ * @example applySettings({}, ['detectors.drift.tolerance=0.1']) // → { detectors: { drift: { tolerance: 0.1 } } }
+ */
+export function applySettings(config: Record<string, unknown>, settings: readonly string[]): Record<string, unknown> {
+  const out = structuredClone(config);
+  for (const setting of settings) {
+    const at = setting.indexOf('=');
+    const key = at > 0 ? setting.slice(0, at).trim() : '';
+    if (!/^[A-Za-z][A-Za-z0-9]*(\.[A-Za-z][A-Za-z0-9]*)*$/.test(key)) {
+      throw new UsageError(`option --set needs key=value with a dotted key, got '${setting}'`);
+    }
+    const text = setting.slice(at + 1);
+    let value: unknown = text;
+    try {
+      value = JSON.parse(text);
+    } catch {
+      // not JSON: keep the text (e.g. a medium spec)
+    }
+    const path = key.split('.');
+    let node = out as Record<string, unknown>;
+    for (const part of path.slice(0, -1)) {
+      const next = node[part];
+      if (next === undefined) node[part] = {};
+      else if (next === null || typeof next !== 'object' || Array.isArray(next)) {
+        throw new UsageError(`option --set ${key}: ${part} is not an object in the settings`);
+      }
+      node = node[part] as Record<string, unknown>;
+    }
+    node[path[path.length - 1]] = value;
+  }
+  return out;
 }
 
 async function readConfig(path: string): Promise<Record<string, unknown>> {

@@ -78,6 +78,7 @@ function buildProgram(io: Io): Command {
     .option('--temperature-log <csv>', 'sensor log with columns t,celsius (overrides --temperature)')
     .option('--tags <csv>', 'tags label,start,end,note: segments of the report')
     .option('--config <file>', 'JSON settings (detector thresholds and more); flags win')
+    .option('--set <key=value>', 'one setting, dotted key (repeatable), e.g. detectors.drift.tolerance=0.1; wins over --config', (value: string, previous: string[]) => [...previous, value], [] as string[])
     .option('--no-progress', 'no progress line on stderr')
     .action(async (file: string, flags: AnalyzeFlags) => {
       const report = await analyzeFile(file, flags, io.stderr);

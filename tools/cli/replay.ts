@@ -3,7 +3,8 @@ import { Recorder } from '../../server/recorder.js';
 import type { RigRunMessage } from '../../server/protocol.js';
 import type { RunSettings } from '../../server/rigMessageFields.js';
 import { IoError } from '../io/ioError.js';
-import { readCentroids } from '../io/readCentroids.js';
+import { createReadStream } from 'node:fs';
+import { CentroidCsvParser } from '../io/centroidCsvParser.js';
 import { readTags } from '../io/readTags.js';
 import { readTemperatureLog } from '../io/readTemperatureLog.js';
 import { RigClient } from '../rig/rigClient.js';
@@ -31,15 +32,6 @@ export interface ReplayFlags {
   json?: boolean;
 }
 
-function copyFrame(frame: Frame): Frame {
-  const n = frame.count;
-  const out: Frame = { index: frame.index, t: frame.t, count: n, x: frame.x.slice(0, n), y: frame.y.slice(0, n) };
-  if (frame.z) out.z = frame.z.slice(0, n);
-  if (frame.id) out.id = frame.id.slice(0, n);
-  if (frame.intensity) out.intensity = frame.intensity.slice(0, n);
-  return out;
-}
-
 function medianStep(frames: Frame[]): number | undefined {
   const steps: number[] = [];
   for (let i = 1; i < Math.min(frames.length, 64); i++) if (frames[i].t > frames[i - 1].t) steps.push(frames[i].t - frames[i - 1].t);
@@ -47,30 +39,68 @@ function medianStep(frames: Frame[]): number | undefined {
   return steps.length > 0 ? steps[Math.floor(steps.length / 2)] : undefined;
 }
 
-/** Merges frames, readings and tags into one data-clock stream (readings before a frame at the same t). */
-function mergeEvents(frames: Frame[], readings: { t: number; celsius: number }[], tags: RigEvent[]): RigEvent[] {
-  const events: RigEvent[] = [...tags];
+/**
+ * Merges frames, readings and tags into one data-clock stream (tags first, readings before a frame
+ * at the same t). Frames may come from an async source, so a CSV streams in bounded memory.
+ */
+async function* mergeEvents(
+  frames: Iterable<Frame> | AsyncIterable<Frame>,
+  readings: { t: number; celsius: number }[],
+  tags: RigEvent[],
+): AsyncGenerator<RigEvent> {
+  yield* tags;
   let next = 0;
-  for (const frame of frames) {
-    while (next < readings.length && readings[next].t <= frame.t) events.push({ type: 'temperature', ...readings[next++] });
-    events.push({ type: 'frame', frame });
+  for await (const frame of frames) {
+    while (next < readings.length && readings[next].t <= frame.t) yield { type: 'temperature', ...readings[next++] };
+    yield { type: 'frame', frame };
   }
-  while (next < readings.length) events.push({ type: 'temperature', ...readings[next++] });
-  return events;
+  while (next < readings.length) yield { type: 'temperature', ...readings[next++] };
 }
 
-async function fromCsv(file: string, flags: ReplayFlags): Promise<{ run: RigRunMessage; events: RigEvent[] }> {
-  const frames: Frame[] = [];
-  const pixelSize = numberOption('--pixel-size', flags.pixelSize, (n) => n > 0) ?? 1;
-  let frameInterval = numberOption('--frame-interval', flags.frameInterval, (n) => n > 0);
+/**
+ * Frames of a centroid CSV, read in 1 MiB chunks and parsed as they come (each frame owns its
+ * arrays): memory stays at one chunk plus the frames of that chunk, whatever the file size.
+ */
+async function* csvFrames(file: string, pixelSize: number, frameInterval: number | undefined): AsyncGenerator<Frame> {
+  const ready: Frame[] = [];
   try {
-    await readCentroids(file, { pixelSize, frameInterval }, (frame) => frames.push(copyFrame(frame)));
+    const parser = new CentroidCsvParser({ pixelSize, frameInterval }, (frame) => ready.push(frame));
+    for await (const chunk of createReadStream(file, { highWaterMark: 1 << 20 })) {
+      parser.push(chunk as Buffer);
+      yield* ready.splice(0);
+    }
+    parser.finish();
+    yield* ready.splice(0);
   } catch (error) {
     if (error instanceof IoError) throw new UsageError(error.message, error.code);
+    if ((error as NodeJS.ErrnoException).code !== undefined && !(error instanceof UsageError)) {
+      throw new UsageError(`file cannot be read: ${file}`, 'JOSTLE_E_FILE');
+    }
     throw error;
   }
-  frameInterval ??= medianStep(frames);
+}
+
+async function fromCsv(file: string, flags: ReplayFlags): Promise<{ run: RigRunMessage; events: AsyncIterable<RigEvent> }> {
+  const pixelSize = numberOption('--pixel-size', flags.pixelSize, (n) => n > 0) ?? 1;
+  let frameInterval = numberOption('--frame-interval', flags.frameInterval, (n) => n > 0);
+  // Read the first frames to find the frame interval (the `run` message goes first), then stream on.
+  const source = csvFrames(file, pixelSize, frameInterval);
+  const head: Frame[] = [];
+  let done = false;
+  while (head.length < 64) {
+    const next = await source.next();
+    if (next.done) {
+      done = true;
+      break;
+    }
+    head.push(next.value);
+  }
+  frameInterval ??= medianStep(head);
   if (frameInterval === undefined) throw new UsageError('the frame interval cannot be found from the file: give --frame-interval', 'JOSTLE_E_OPTION');
+  async function* frames(): AsyncGenerator<Frame> {
+    yield* head;
+    if (!done) yield* { [Symbol.asyncIterator]: () => source };
+  }
   const readings = flags.temperatureLog ? (await readTemperatureLog(flags.temperatureLog)).readings.slice().sort((a, b) => a.t - b.t) : [];
   const tags: RigEvent[] = flags.tags ? (await readTags(flags.tags)).tags.map((tag) => ({ type: 'tag' as const, tag })) : [];
   const run: RigRunMessage = { type: 'run', frameInterval, label: flags.label ?? file };
@@ -82,10 +112,10 @@ async function fromCsv(file: string, flags: ReplayFlags): Promise<{ run: RigRunM
     run: flags.as,
   };
   for (const [k, v] of Object.entries(extra)) if (v !== undefined) (run as unknown as Record<string, unknown>)[k] = v;
-  return { run, events: mergeEvents(frames, readings, tags) };
+  return { run, events: mergeEvents(frames(), readings, tags) };
 }
 
-function fromRecording(flags: ReplayFlags): { run: RigRunMessage; events: RigEvent[]; close: () => void } {
+function fromRecording(flags: ReplayFlags): { run: RigRunMessage; events: AsyncIterable<RigEvent>; close: () => void } {
   let recorder: Recorder;
   try {
     recorder = new Recorder(flags.data as string, { readonly: true });
@@ -101,7 +131,7 @@ function fromRecording(flags: ReplayFlags): { run: RigRunMessage; events: RigEve
   const run: RigRunMessage = { type: 'run', ...settings.pipeline, label: flags.label ?? record.label, run: flags.as };
   if (flags.as === undefined) delete run.run;
   const tags: RigEvent[] = recorder.tags(record.id).map((tag) => ({ type: 'tag', tag }));
-  const events = mergeEvents([...recorder.frames(record.id)], recorder.temperatures(record.id), tags);
+  const events = mergeEvents(recorder.frames(record.id), recorder.temperatures(record.id), tags);
   return { run, events, close: () => recorder.close() };
 }
 
@@ -145,7 +175,7 @@ export async function streamRun(
   url: string,
   token: string | undefined,
   run: RigRunMessage,
-  events: Iterable<RigEvent>,
+  events: Iterable<RigEvent> | AsyncIterable<RigEvent>,
   pacing: { speed: number; fast: boolean; stopped?: () => boolean },
 ): Promise<{ run: string; frames: number; centroids: number; alerts: number; errors: number }> {
   const endpoint = rigEndpoint(url, token);

@@ -19,7 +19,19 @@ export type { Condition, AlertKind, AlertLevel, Effect } from './alerts/conditio
 export type { Detector } from './detectors/detector.js';
 export type { DetectorContext } from './detectors/detectorContext.js';
 export type { FrameSteps } from './detectors/frameSteps.js';
-export { createDetectors } from './detectors/createDetectors.js';
+export { createDetectors, DETECTOR_NAMES } from './detectors/createDetectors.js';
+export { DriftDetector } from './detectors/drift/driftDetector.js';
+export { siegmundArl } from './detectors/drift/siegmundArl.js';
+export { siegmundThreshold } from './detectors/drift/siegmundThreshold.js';
+export { VibrationDetector } from './detectors/vibration/vibrationDetector.js';
+export { TemperatureDetector } from './detectors/temperature/temperatureDetector.js';
+export { gammaCusumArl } from './detectors/temperature/gammaCusumArl.js';
+export { ClumpingDetector } from './detectors/clumping/clumpingDetector.js';
+export { clarkEvans } from './detectors/clumping/clarkEvans.js';
+export { TimingDetector } from './detectors/quality/timingDetector.js';
+export { NoiseDetector } from './detectors/quality/noiseDetector.js';
+export { TracksDetector } from './detectors/quality/tracksDetector.js';
+export { SparseDetector } from './detectors/quality/sparseDetector.js';
 
 // Estimators, physics, linking, simulation
 export * from './estimators/index.js';

@@ -121,7 +121,11 @@ export async function analyzeFile(
       pixelSize,
       ...(tagRejections.length > 0 ? { rejectedTags: tagRejections } : {}),
     },
-    provenanceOptions: { ...p.options, pixelSize, file, tags: flags.tags ?? null, temperatureLog: flags.temperatureLog ?? null, config: flags.config ?? null },
+    // every setting, defaults included; settings left unset are null (JSON would drop undefined)
+    provenanceOptions: Object.fromEntries(
+      Object.entries({ ...p.options, pixelSize, file, tags: flags.tags ?? null, temperatureLog: flags.temperatureLog ?? null, config: flags.config ?? null, set: flags.set ?? [] })
+        .map(([key, value]) => [key, value === undefined ? null : value]),
+    ),
     generated: new Date().toISOString(),
   });
 }
@@ -217,7 +221,8 @@ function medianInterval(frames: Frame[]): number {
   }
   if (steps.length === 0) throw new UsageError('the frame interval cannot be found from the file: give --frame-interval', 'JOSTLE_E_OPTION');
   steps.sort((a, b) => a - b);
-  return steps[Math.floor(steps.length / 2)];
+  // 12 significant digits: differences of printed times carry rounding noise (0.05 → 0.050000000000000044)
+  return Number(steps[Math.floor(steps.length / 2)].toPrecision(12));
 }
 
 async function wrapIo<T>(action: () => Promise<T>): Promise<T> {

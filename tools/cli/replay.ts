@@ -36,7 +36,8 @@ function medianStep(frames: Frame[]): number | undefined {
   const steps: number[] = [];
   for (let i = 1; i < Math.min(frames.length, 64); i++) if (frames[i].t > frames[i - 1].t) steps.push(frames[i].t - frames[i - 1].t);
   steps.sort((a, b) => a - b);
-  return steps.length > 0 ? steps[Math.floor(steps.length / 2)] : undefined;
+  // 12 significant digits: differences of printed times carry rounding noise (0.05 → 0.050000000000000044)
+  return steps.length > 0 ? Number(steps[Math.floor(steps.length / 2)].toPrecision(12)) : undefined;
 }
 
 /**

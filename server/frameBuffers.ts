@@ -1,6 +1,9 @@
 import type { Frame } from '../src/frame.js';
 import { ServerError } from './serverError.js';
 
+/** Typed arrays use the host's byte order; bins are little-endian (CONTRACTS §4). */
+const LITTLE_ENDIAN = new Uint8Array(Uint16Array.of(1).buffer)[0] === 1;
+
 /** Which numeric array of a frame message. */
 type Field = 'x' | 'y' | 'z' | 'intensity' | 'id';
 
@@ -8,7 +11,8 @@ type Field = 'x' | 'y' | 'z' | 'intensity' | 'id';
  * The reused columnar buffers one rig connection decodes its frames into: Float64Arrays for
  * coordinates and intensity, a Uint32Array for ids, allocated once and grown by doubling, so a
  * frame costs no allocation in the steady state. A MessagePack `bin` (a Buffer view at any byte
- * offset, so not aligned for a Float64Array) is read with DataView little-endian reads; a plain
+ * offset, so not aligned for a Float64Array) is copied with one memcpy into the aligned buffer and
+ * then checked in one pass (DataView little-endian reads on a big-endian host); a plain
  * array (or a typed array that a library's extension type decoded to) is checked element by
  * element. Every value must be finite (ids: integers in
  * [0, 2³² − 1]).
@@ -106,6 +110,34 @@ export class FrameBuffers {
       return;
     }
     const bytes = value as Uint8Array;
+    if (LITTLE_ENDIAN) {
+      // Fast path: one memcpy of the bin into aligned memory (a msgpackr bin is a view at any byte
+      // offset, so it cannot be viewed as a Float64Array in place), then one validating pass.
+      if (floatBits === 64) {
+        new Uint8Array(out.buffer, out.byteOffset, count * 8).set(bytes.subarray(0, count * 8));
+        if (scale === 1) {
+          for (let i = 0; i < count; i++) {
+            // v − v is 0 for a finite v and NaN for ±Infinity and NaN: one test per value
+            if (out[i] - out[i] !== 0) throw new ServerError('JOSTLE_E_NOT_FINITE', 'frame holds a value that is not finite');
+          }
+        } else {
+          for (let i = 0; i < count; i++) {
+            const v = out[i];
+            if (v - v !== 0) throw new ServerError('JOSTLE_E_NOT_FINITE', 'frame holds a value that is not finite');
+            out[i] = v * scale;
+          }
+        }
+        return;
+      }
+      const narrow = this.float32Scratch(count);
+      new Uint8Array(narrow.buffer, 0, count * 4).set(bytes.subarray(0, count * 4));
+      for (let i = 0; i < count; i++) {
+        const v = narrow[i];
+        if (v - v !== 0) throw new ServerError('JOSTLE_E_NOT_FINITE', 'frame holds a value that is not finite');
+        out[i] = v * scale;
+      }
+      return;
+    }
     // A DataView reads at any byte offset: msgpackr's bins are views into the message buffer.
     const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
     for (let i = 0; i < count; i++) {
@@ -113,6 +145,13 @@ export class FrameBuffers {
       if (!Number.isFinite(v)) throw new ServerError('JOSTLE_E_NOT_FINITE', 'frame holds a value that is not finite');
       out[i] = v * scale;
     }
+  }
+
+  private narrow = new Float32Array(0);
+
+  private float32Scratch(count: number): Float32Array {
+    if (this.narrow.length < count) this.narrow = new Float32Array(Math.max(64, 2 * count));
+    return this.narrow;
   }
 
   private copyIds(value: unknown, count: number): void {
@@ -128,6 +167,11 @@ export class FrameBuffers {
       return;
     }
     const bytes = value as Uint8Array;
+    if (LITTLE_ENDIAN) {
+      // every uint32 is a valid id: one memcpy into the aligned buffer
+      new Uint8Array(out.buffer, out.byteOffset, count * 4).set(bytes.subarray(0, count * 4));
+      return;
+    }
     const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
     for (let i = 0; i < count; i++) out[i] = view.getUint32(i * 4, true);
   }

@@ -78,7 +78,10 @@ export class LiveRun {
   private readonly flush$ = new Subject<void>();
   private readonly subscriptions: Subscription[] = [];
   private readonly history: RunHistory = { t: [], reportedCelsius: [], impliedCelsius: [], impliedLow: [], impliedHigh: [], driftVx: [], driftVy: [], driftX: [], driftY: [] };
-  private readonly trail: { t: number; x: number[]; y: number[]; id: number[] | null }[] = [];
+  // The last `trailFrames` frames' positions, newest first, in reused typed arrays (a memcpy per
+  // frame, no per-centroid allocation); turned into plain arrays only when a dashboard draws them.
+  private readonly trail: { t: number; count: number; x: Float64Array; y: Float64Array; id: Uint32Array; hasId: boolean }[] = [];
+  private readonly spareTrail: { t: number; count: number; x: Float64Array; y: Float64Array; id: Uint32Array; hasId: boolean }[] = [];
   private pendingRows = 0;
   private quotaWarned = false;
   private rate = { at: 0, frames: 0, value: 0 };
@@ -340,17 +343,32 @@ export class LiveRun {
   private keepTrail(frame: Frame): void {
     if (this.restoring) return;
     const n = frame.count;
-    this.trail.unshift({
-      t: frame.t,
-      x: Array.from(frame.x.subarray(0, n)),
-      y: Array.from(frame.y.subarray(0, n)),
-      id: frame.id ? Array.from(frame.id.subarray(0, n)) : null,
-    });
-    if (this.trail.length > this.options.trailFrames) this.trail.pop();
+    const slot = this.spareTrail.pop() ?? { t: 0, count: 0, x: new Float64Array(0), y: new Float64Array(0), id: new Uint32Array(0), hasId: false };
+    if (slot.x.length < n) {
+      slot.x = new Float64Array(n);
+      slot.y = new Float64Array(n);
+      slot.id = new Uint32Array(n);
+    }
+    slot.t = frame.t;
+    slot.count = n;
+    slot.x.set(frame.x.subarray(0, n));
+    slot.y.set(frame.y.subarray(0, n));
+    slot.hasId = frame.id !== undefined;
+    if (frame.id) slot.id.set(frame.id.subarray(0, n));
+    this.trail.unshift(slot);
+    if (this.trail.length > this.options.trailFrames) this.spareTrail.push(this.trail.pop()!);
   }
 
   private positions(): RunPositions {
-    return { t: this.trail[0]?.t ?? null, frames: this.trail.slice() };
+    return {
+      t: this.trail[0]?.t ?? null,
+      frames: this.trail.map((f) => ({
+        t: f.t,
+        x: Array.from(f.x.subarray(0, f.count)),
+        y: Array.from(f.y.subarray(0, f.count)),
+        id: f.hasId ? Array.from(f.id.subarray(0, f.count)) : null,
+      })),
+    };
   }
 
   private appendHistory(report: Report): void {
@@ -390,7 +408,7 @@ export class LiveRun {
       frames,
       centroids: this.pipeline.counts().centroids,
       framesPerSecond: this.rate.value,
-      particles: this.trail[0]?.x.length ?? 0,
+      particles: this.trail[0]?.count ?? 0,
       tracks: report.input.tracks,
       rejectedMessages: this.counters.rejectedMessages,
       resentFrames: this.counters.resentFrames,

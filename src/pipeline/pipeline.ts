@@ -20,7 +20,7 @@ import {
   CVE_SUM_PRODUCTS_CORRECTED,
   CVE_SUM_SQUARES,
   CVE_SUM_SQUARES_CORRECTED,
-  cveOffset,
+  CVE_WIDTH,
   lagOffset,
   statsLayout,
   type StatsLayout,
@@ -309,6 +309,9 @@ export class Pipeline {
     this.tracks = new TrackTable(this.layout, this.ringSize, o.groups, o.maxTrackTable);
     this.blocks = new TimeBlocks(this.layout, o.blockSeconds, o.maxBlocks);
     this.globalStats = new Float64Array(this.layout.width);
+    this.frameCve = new Float64Array(this.layout.width);
+    this.frameLag = new Float64Array(o.groups * this.layout.width);
+    this.groupSeen = new Uint8Array(o.groups);
     this.driftRing = new Float64Array(this.ringSize * 3);
     this.driftRingSlot = new Int32Array(this.ringSize).fill(-1);
     this.firstT = frame.t;
@@ -481,89 +484,151 @@ export class Pipeline {
     this.driftRing[ringSlotIndex * 3 + 2] = drift[2];
     this.driftRingSlot[ringSlotIndex] = slot;
     // 4. Per particle: ring, CVE sums, lag sums.
+    // Each sum goes to one destination in the loop: the track's own record (CVE sums, needed per
+    // track) and small per-frame scratch records (the frame's CVE sums, and its lag sums per
+    // group of tracks) that stay in cache; the scratch is folded into the run, group and block
+    // totals once per frame below (O(groups × width) per frame instead of per particle and lag).
     const block = (this.blocks as TimeBlocks).blockFor(slot * o.frameInterval, frame.t);
     const blockStats = (this.blocks as TimeBlocks).stats;
     const blockOffset = block * layout.width;
-    const global = this.globalStats;
+    const width = layout.width;
     const lags = this.lags;
     const lagCount = lags.length;
     const ringSize = this.ringSize;
     const trackStats = tracks.stats;
     const ring = tracks.ring;
     const ringSlot = tracks.ringSlot;
+    const runStart = tracks.runStart;
+    const trackGroup = tracks.group;
+    const driftRing = this.driftRing;
+    const driftRingSlot = this.driftRingSlot;
     const previousOffset = layout.previousOffset;
+    const lagBase = layout.lagBase;
     const lagStride = 1 + 3 * dims;
-    const position = this.positionScratch;
-    const nonGaussian = this.nonGaussianSums;
-    let stepCursor = 0;
+    const frameCve = this.frameCve;
+    const frameLag = this.frameLag;
+    const groupSeen = this.groupSeen;
+    // Slots since the last slot with no frame: lags reaching back no further than this find the
+    // drift ring filled (no per-lag check needed).
+    if (slotGap !== 1) this.driftRunStart = slot;
+    const driftRunStart = this.driftRunStart;
+    let nonGaussianR2 = 0;
+    let nonGaussianR4 = 0;
+    let nonGaussianCount = 0;
+    const hereSlot = slot % ringSize;
+    const drift0 = drift[0];
+    const drift1 = drift[1];
+    const drift2 = drift[2];
     for (let p = 0; p < present; p++) {
       const index = this.trackIndex[p];
-      const base = index * layout.width;
-      position[0] = steps.x[p];
-      position[1] = steps.y[p];
-      position[2] = this.stepZ[p];
+      const base = index * width;
+      const px = steps.x[p];
+      const py = steps.y[p];
+      const pz = this.stepZ[p];
       const lastSlot = tracks.lastSlot[index];
       // One-slot step: CVE sums (raw and per-frame corrected).
       if (lastSlot === slot - 1) {
-        const lastRing = tracks.ringBase(index, lastSlot, ringSize);
+        const lastRing = (index * ringSize + (lastSlot % ringSize)) * 3;
         const hasPair = trackStats[base + previousOffset + 2 * dims] === slot - 1;
         for (let a = 0; a < dims; a++) {
-          const d = position[a] - ring[lastRing + a];
+          const d = (a === 0 ? px : a === 1 ? py : pz) - ring[lastRing + a];
           const dc = d - mean[a];
-          const c = cveOffset(a);
+          const c = a * CVE_WIDTH;
           const previous = trackStats[base + previousOffset + a];
           const previousCorrected = trackStats[base + previousOffset + dims + a];
           addCve(trackStats, base + c, d, dc, hasPair, previous, previousCorrected);
-          addCve(global, c, d, dc, hasPair, previous, previousCorrected);
-          addCve(blockStats, blockOffset + c, d, dc, hasPair, previous, previousCorrected);
+          addCve(frameCve, c, d, dc, hasPair, previous, previousCorrected);
           trackStats[base + previousOffset + a] = d;
           trackStats[base + previousOffset + dims + a] = dc;
         }
         trackStats[base + previousOffset + 2 * dims] = slot;
-        stepCursor++;
+      } else {
+        // the track's unbroken run of slots starts here
+        runStart[index] = slot;
       }
-      // Lag sums over the ring (time-averaged MSD), raw and per-frame corrected.
+      // Lag sums over the ring (time-averaged MSD), raw and per-frame corrected, into the frame's
+      // scratch record of the track's group.
+      const group = trackGroup[index];
+      groupSeen[group] = 1;
+      const groupBase = group * width + lagBase;
+      const rowBase = index * ringSize;
+      const trackRunStart = runStart[index];
       for (let l = 0; l < lagCount; l++) {
         const n = lags[l];
         const from = slot - n;
         if (from < 0) break;
-        const fromIndex = from % ringSize;
-        if (ringSlot[index * ringSize + fromIndex] !== from) continue;
-        if (this.driftRingSlot[fromIndex] !== from) continue;
-        const fromRing = (index * ringSize + fromIndex) * 3;
-        const lagBase = base + layout.lagBase + l * lagStride;
-        const blockLagBase = blockOffset + layout.lagBase + l * lagStride;
-        trackStats[lagBase] += 1;
-        blockStats[blockLagBase] += 1;
-        let r2 = 0;
-        for (let a = 0; a < dims; a++) {
-          const d = position[a] - ring[fromRing + a];
-          const dc = d - (drift[a] - this.driftRing[fromIndex * 3 + a]);
-          const at = 1 + 3 * a;
-          trackStats[lagBase + at] += d;
-          trackStats[lagBase + at + 1] += d * d;
-          trackStats[lagBase + at + 2] += dc * dc;
-          blockStats[blockLagBase + at] += d;
-          blockStats[blockLagBase + at + 1] += d * d;
-          blockStats[blockLagBase + at + 2] += dc * dc;
-          r2 += dc * dc;
+        // (slot − n) mod ringSize without a division (n < ringSize)
+        let fromIndex = hereSlot - n;
+        if (fromIndex < 0) fromIndex += ringSize;
+        // Inside the track's unbroken run (and the drift ring's) the slot is known to be filled.
+        if (from < trackRunStart && ringSlot[rowBase + fromIndex] !== from) continue;
+        if (from < driftRunStart && driftRingSlot[fromIndex] !== from) continue;
+        const fromRing = (rowBase + fromIndex) * 3;
+        const at = groupBase + l * lagStride;
+        const driftAt = fromIndex * 3;
+        const dx = px - ring[fromRing];
+        const dxc = dx - (drift0 - driftRing[driftAt]);
+        const dy = py - ring[fromRing + 1];
+        const dyc = dy - (drift1 - driftRing[driftAt + 1]);
+        frameLag[at] += 1;
+        frameLag[at + 1] += dx;
+        frameLag[at + 2] += dx * dx;
+        frameLag[at + 3] += dxc * dxc;
+        frameLag[at + 4] += dy;
+        frameLag[at + 5] += dy * dy;
+        frameLag[at + 6] += dyc * dyc;
+        let r2 = dxc * dxc + dyc * dyc;
+        if (dims === 3) {
+          const dz = pz - ring[fromRing + 2];
+          const dzc = dz - (drift2 - driftRing[driftAt + 2]);
+          frameLag[at + 7] += dz;
+          frameLag[at + 8] += dz * dz;
+          frameLag[at + 9] += dzc * dzc;
+          r2 += dzc * dzc;
         }
         if (n === 1) {
-          nonGaussian[0] += r2;
-          nonGaussian[1] += r2 * r2;
-          nonGaussian[2] += 1;
+          nonGaussianR2 += r2;
+          nonGaussianR4 += r2 * r2;
+          nonGaussianCount += 1;
         }
       }
       // Store the position in the ring and update the track's bookkeeping.
-      const here = (index * ringSize + (slot % ringSize)) * 3;
-      ring[here] = position[0];
-      ring[here + 1] = position[1];
-      ring[here + 2] = position[2];
-      ringSlot[index * ringSize + (slot % ringSize)] = slot;
+      const here = (rowBase + hereSlot) * 3;
+      ring[here] = px;
+      ring[here + 1] = py;
+      ring[here + 2] = pz;
+      ringSlot[rowBase + hereSlot] = slot;
       tracks.touch(index, slot, frame.t);
       steps.trackLength[p] = tracks.length[index];
     }
-    void stepCursor;
+    this.nonGaussianSums[0] += nonGaussianR2;
+    this.nonGaussianSums[1] += nonGaussianR4;
+    this.nonGaussianSums[2] += nonGaussianCount;
+    // Fold the frame's scratch into the run's totals (CVE part: run and block; lag part: the
+    // group totals and the block), and clear it for the next frame.
+    const global = this.globalStats;
+    const cveEnd = previousOffset;
+    if (stepCount > 0) {
+      for (let i = 0; i < cveEnd; i++) {
+        const v = frameCve[i];
+        global[i] += v;
+        blockStats[blockOffset + i] += v;
+        frameCve[i] = 0;
+      }
+    }
+    const groupLag = tracks.groupLag;
+    for (let g = 0; g < groupSeen.length; g++) {
+      if (groupSeen[g] === 0) continue;
+      groupSeen[g] = 0;
+      const from = g * width;
+      for (let i = lagBase; i < width; i++) {
+        const v = frameLag[from + i];
+        if (v === 0) continue;
+        groupLag[from + i] += v;
+        blockStats[blockOffset + i] += v;
+        frameLag[from + i] = 0;
+      }
+    }
     // 5. Tracks unseen for more than maxGapFrames end now.
     const ended = tracks.endStale(slot, o.maxGapFrames);
     this.foldEnded(ended);
@@ -593,7 +658,12 @@ export class Pipeline {
   }
 
   private frameMean = new Float64Array(3);
-  private positionScratch = new Float64Array(3);
+  // Per-frame scratch records (see processFrame step 4): the frame's CVE sums, and its lag sums
+  // per group (groups × width), with the groups seen in the frame; allocated once per run.
+  private frameCve: Float64Array = new Float64Array(0);
+  private frameLag: Float64Array = new Float64Array(0);
+  private groupSeen: Uint8Array = new Uint8Array(0);
+  private driftRunStart = 0;
 
   private accumulateCommonMode(stepCount: number, mean: Float64Array, slot: number): void {
     const steps = this.steps;

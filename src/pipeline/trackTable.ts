@@ -3,6 +3,11 @@ import { addStats, cveOffset, CVE_WIDTH, type StatsLayout } from './statsLayout.
 /** lastSlot of a track with no position yet (far below any real slot, so no step or lag matches). */
 export const NO_SLOT = -1_000_000_000;
 
+/** Largest id kept in the dense id → row table (4 bytes per id below it): 2²⁰. */
+const DENSE_ID_LIMIT = 1 << 20;
+
+const NO_TRACKS: EndedTrack[] = [];
+
 /** A track that has ended, as reported to detectors and kept in the per-track table. */
 export interface EndedTrack {
   id: number;
@@ -24,8 +29,8 @@ export interface EndedTrack {
  * Ended tracks are folded into per-group totals (for the ensemble and the jackknife) and kept in
  * a bounded table (longest tracks win when it is full).
  *
- * Memory per live track: 8·(width + 3·ringSize) + 4·ringSize + ~40 bytes
- * (≈ 4.2 KiB at 2 axes, 16 lags, maxLag 128).
+ * Memory per live track: 8·(width + 3·ringSize) + 4·ringSize + ~80 bytes (bookkeeping, the dense
+ * id table, the Map entry): ≈ 4.8 KiB at 2 axes, 16 lags, maxLag 128 (tools/bench/trackMemory.ts).
  */
 export class TrackTable {
   readonly layout: StatsLayout;
@@ -37,6 +42,8 @@ export class TrackTable {
   ring: Float64Array = new Float64Array(0);
   ringSlot: Int32Array = new Int32Array(0);
   lastSlot: Int32Array = new Int32Array(0);
+  /** First slot of the track's current unbroken run of slots (its ring is filled from there on). */
+  runStart: Int32Array = new Int32Array(0);
   /** Slot of the frame being gathered in which the track was already seen (duplicate-id check). */
   mark: Int32Array = new Int32Array(0);
   length: Uint32Array = new Uint32Array(0);
@@ -54,9 +61,22 @@ export class TrackTable {
   omittedWithSteps = 0;
   /** Tracks ever started. */
   started = 0;
+  /**
+   * Per-group lag sums (groups × width, lag part only): the pipeline adds every frame's lag sums
+   * here once per group instead of into each track's record (one hot destination instead of one
+   * per track; the per-track lag sums were only ever read summed over a group).
+   */
+  readonly groupLag: Float64Array;
   private readonly live = new Map<number, number>();
   private readonly free: number[] = [];
   private shortestInTable = 0;
+  // Dense id → row + 1 (0: not live) for small integer ids, so the hot lookup is one typed-array
+  // read instead of a Map probe; ids ≥ DENSE_ID_LIMIT fall back to the Map.
+  private dense: Int32Array = new Int32Array(0);
+  // Live tracks per last-seen slot, in a ring of maxGap + 1 slots (see endStale): lets the
+  // O(live tracks) sweep be skipped on frames where no track can have gone stale.
+  private recentCount: Int32Array = new Int32Array(0);
+  private recentSlot: Int32Array = new Int32Array(0);
 
   constructor(layout: StatsLayout, ringSize: number, groups: number, maxTable: number) {
     this.layout = layout;
@@ -64,6 +84,7 @@ export class TrackTable {
     this.groups = groups;
     this.maxTable = maxTable;
     this.closed = new Float64Array(groups * layout.width);
+    this.groupLag = new Float64Array(groups * layout.width);
     this.grow(256);
   }
 
@@ -89,8 +110,13 @@ export class TrackTable {
 
   /** Row of track `id`, creating a new track (first seen at `slot`, time `t`) if needed. O(1) amortised. */
   lookupOrCreate(id: number, slot: number, t: number): number {
-    const known = this.live.get(id);
-    if (known !== undefined) return known;
+    if (id < this.dense.length) {
+      const row = this.dense[id];
+      if (row > 0) return row - 1;
+    } else if (id >= DENSE_ID_LIMIT) {
+      const known = this.live.get(id);
+      if (known !== undefined) return known;
+    }
     if (this.free.length === 0) this.grow(this.capacity * 2);
     const index = this.free.pop() as number;
     const width = this.layout.width;
@@ -99,6 +125,7 @@ export class TrackTable {
     this.stats[index * width + this.layout.previousOffset + 2 * this.layout.dims] = -2;
     this.ringSlot.fill(-1, index * this.ringSize, (index + 1) * this.ringSize);
     this.lastSlot[index] = NO_SLOT;
+    this.runStart[index] = NO_SLOT;
     this.mark[index] = NO_SLOT;
     this.length[index] = 0;
     this.id[index] = id;
@@ -107,6 +134,16 @@ export class TrackTable {
     this.group[index] = this.started % this.groups;
     this.started++;
     this.live.set(id, index);
+    if (id < DENSE_ID_LIMIT) {
+      if (id >= this.dense.length) {
+        let size = Math.max(1024, this.dense.length);
+        while (size <= id) size *= 2;
+        const dense = new Int32Array(Math.min(size, DENSE_ID_LIMIT));
+        dense.set(this.dense);
+        this.dense = dense;
+      }
+      this.dense[id] = index + 1;
+    }
     void slot;
     return index;
   }
@@ -118,13 +155,29 @@ export class TrackTable {
 
   /** Records that track row `index` has a position at `slot`, time `t`. */
   touch(index: number, slot: number, t: number): void {
+    this.forgetRecent(this.lastSlot[index]);
+    this.noteRecent(slot);
     this.lastSlot[index] = slot;
     this.length[index]++;
     this.lastT[index] = t;
   }
 
-  /** Ends the tracks not seen for more than `maxGap` slots before `slot`. O(live tracks). */
+  /**
+   * Ends the tracks not seen for more than `maxGap` slots before `slot`. O(maxGap) when every
+   * live track was seen within the allowance (the usual frame: the counts of live tracks per
+   * recent last-seen slot add up to the live count), else O(live tracks). The sweep, when it
+   * runs, visits tracks in the order they started, as before.
+   */
   endStale(slot: number, maxGap: number): EndedTrack[] {
+    if (this.recentCount.length !== maxGap + 1) this.resetRecent(maxGap + 1);
+    let recent = 0;
+    const size = this.recentCount.length;
+    for (let k = slot - maxGap; k <= slot; k++) {
+      if (k < 0) continue;
+      const at = k % size;
+      if (this.recentSlot[at] === k) recent += this.recentCount[at];
+    }
+    if (recent === this.live.size) return NO_TRACKS;
     const ended: EndedTrack[] = [];
     for (const [id, index] of this.live) {
       if (slot - this.lastSlot[index] > maxGap) {
@@ -148,6 +201,7 @@ export class TrackTable {
   groupTotals(): Float64Array {
     const totals = Float64Array.from(this.closed);
     const width = this.layout.width;
+    for (let i = 0; i < totals.length; i++) totals[i] += this.groupLag[i];
     for (const index of this.live.values()) {
       addStats(this.layout, totals, this.group[index] * width, this.stats, index * width);
     }
@@ -163,7 +217,9 @@ export class TrackTable {
     const row = this.snapshot(index);
     addStats(this.layout, this.closed, this.group[index] * this.layout.width, this.stats, index * this.layout.width);
     this.keep(row);
+    this.forgetRecent(this.lastSlot[index]);
     this.live.delete(id);
+    if (id < this.dense.length) this.dense[id] = 0;
     this.free.push(index);
     return row;
   }
@@ -207,6 +263,36 @@ export class TrackTable {
     return best;
   }
 
+  private noteRecent(slot: number): void {
+    const size = this.recentCount.length;
+    if (size === 0 || slot < 0) return;
+    const at = slot % size;
+    if (this.recentSlot[at] !== slot) {
+      this.recentSlot[at] = slot;
+      this.recentCount[at] = 0;
+    }
+    this.recentCount[at]++;
+  }
+
+  private forgetRecent(slot: number): void {
+    const size = this.recentCount.length;
+    if (size === 0 || slot < 0) return;
+    const at = slot % size;
+    if (this.recentSlot[at] === slot) this.recentCount[at]--;
+  }
+
+  private resetRecent(size: number): void {
+    // Rebuild the counts from the live tracks (first call, or a different allowance).
+    this.recentCount = new Int32Array(size);
+    this.recentSlot = new Int32Array(size).fill(-1);
+    let newest = -1;
+    for (const index of this.live.values()) newest = Math.max(newest, this.lastSlot[index]);
+    for (const index of this.live.values()) {
+      const last = this.lastSlot[index];
+      if (last >= 0 && newest - last < size) this.noteRecent(last);
+    }
+  }
+
   private grow(capacity: number): void {
     const old = this.capacity;
     const width = this.layout.width;
@@ -219,6 +305,8 @@ export class TrackTable {
     ringSlot.set(this.ringSlot);
     const lastSlot = new Int32Array(capacity);
     lastSlot.set(this.lastSlot);
+    const runStart = new Int32Array(capacity);
+    runStart.set(this.runStart);
     const mark = new Int32Array(capacity);
     mark.set(this.mark);
     const length = new Uint32Array(capacity);
@@ -235,6 +323,7 @@ export class TrackTable {
     this.ring = ring;
     this.ringSlot = ringSlot;
     this.lastSlot = lastSlot;
+    this.runStart = runStart;
     this.mark = mark;
     this.length = length;
     this.id = id;

@@ -1,48 +1,91 @@
 // End-to-end throughput of the live server over loopback (not a test): a rig child process
-// (`jostle simulate <scenario> --url … --fast`) → ws → decode → pipeline → recording → one
-// dashboard watching. Prints centroids/s from the first frame received to the run's end.
-// Run: npx tsx tools/bench/endToEnd.ts [scenario=crowded] [frames=600]
+// (tools/bench/benchRig.ts) → ws → decode → pipeline → recording on → one dashboard watching,
+// both cores (the rig included). Reports centroids/s over the run, and the queue: frames sent
+// by the rig minus frames the pipeline has taken, sampled every second (flat = keeping up).
+// Run: npx tsx tools/bench/endToEnd.ts [msgpack|json] [particles=1000] [seconds=20]
 import { spawn } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { createInterface } from 'node:readline';
 import { WebSocket } from 'ws';
 import { startServer } from '../../server/startServer.js';
 
-const scenario = process.argv[2] ?? 'crowded';
-const frames = process.argv[3] ?? '600';
-const data = mkdtempSync(join(tmpdir(), 'jostle-bench-'));
-const server = await startServer({ port: 0, data, token: 'bench-token-123', log: () => undefined });
-const root = join(import.meta.dirname, '..', '..');
-const child = spawn(process.execPath, ['tools/jostle.js', 'simulate', scenario, '--frames', frames, '--url', `ws://127.0.0.1:${server.port}/rig`, '--token', server.token, '--fast', '--run-id', 'bench'], { cwd: root, stdio: ['ignore', 'pipe', 'inherit'] });
-let updates = 0;
-let firstAt: number | undefined;
-let endedAt: number | undefined;
-let dashboard: WebSocket | undefined;
-await new Promise<void>((resolve) => {
-  const poll = setInterval(() => {
-    const run = server.registry.get('bench');
-    if (run && firstAt === undefined && run.pipeline.counts().frames > 0) {
-      firstAt = performance.now();
-      dashboard = new WebSocket(`ws://127.0.0.1:${server.port}/watch?run=bench&token=${server.token}`);
-      dashboard.on('message', () => updates++);
-    }
-    if (run && run.state === 'ended') {
-      endedAt = performance.now();
-      clearInterval(poll);
-      resolve();
-    }
-  }, 2);
-});
-const run = server.registry.get('bench')!;
-const centroids = run.pipeline.counts().centroids;
-const seconds = ((endedAt as number) - (firstAt as number)) / 1000;
-process.stdout.write(
-  `endToEnd ${scenario}: ${run.pipeline.counts().frames} frames, ${centroids} centroids in ${seconds.toFixed(2)} s → ` +
-    `${Math.round(centroids / seconds)} centroids/s, ${Math.round(run.pipeline.counts().frames / seconds)} frames/s; ` +
-    `${updates} dashboard messages; recorded ${server.registry.recorder.run('bench')?.frames} frames\n`,
-);
-dashboard?.close();
-await new Promise((r) => child.once('exit', r));
-await server.close();
-rmSync(data, { recursive: true, force: true });
+/** Result of one end-to-end run. */
+export interface EndToEndResult {
+  encoding: string;
+  particles: number;
+  seconds: number;
+  centroidsPerSecond: number;
+  framesPerSecond: number;
+  /** Rig frames sent minus pipeline frames taken, each second. */
+  queue: number[];
+  dashboardMessages: number;
+  recordedFrames: number | undefined;
+}
+
+export async function endToEnd(encoding: 'msgpack' | 'json', particles = 1000, seconds = 20): Promise<EndToEndResult> {
+  const data = mkdtempSync(join(tmpdir(), 'jostle-bench-'));
+  const server = await startServer({ port: 0, host: '127.0.0.1', data, token: 'bench-token-123', log: () => undefined, quotaBytes: 64 * 2 ** 30 });
+  try {
+    const root = join(import.meta.dirname, '..', '..');
+    const child = spawn(process.execPath, ['--import', 'tsx', 'tools/bench/benchRig.ts', `ws://127.0.0.1:${server.port}/rig`, server.token as string, encoding, String(particles), String(seconds)], {
+      cwd: root,
+      stdio: ['ignore', 'pipe', 'inherit'],
+    });
+    const runId = `bench-${encoding}`;
+    const queue: number[] = [];
+    let dashboard: WebSocket | undefined;
+    let dashboardMessages = 0;
+    let firstAt: number | undefined;
+    let firstCentroids = 0;
+    let firstFrames = 0;
+    const lines = createInterface({ input: child.stdout });
+    lines.on('line', (line) => {
+      const status = JSON.parse(line) as { sent: number; done?: boolean };
+      const run = server.registry.get(runId);
+      if (!status.done && run) queue.push(status.sent - run.pipeline.counts().frames);
+    });
+    await new Promise<void>((resolve) => {
+      const poll = setInterval(() => {
+        const run = server.registry.get(runId);
+        if (run && firstAt === undefined && run.pipeline.counts().frames > 0) {
+          firstAt = performance.now();
+          firstCentroids = run.pipeline.counts().centroids;
+          firstFrames = run.pipeline.counts().frames;
+          dashboard = new WebSocket(`ws://127.0.0.1:${server.port}/watch?run=${runId}&token=${server.token}`);
+          dashboard.on('message', () => dashboardMessages++);
+        }
+        if (run && run.state === 'ended') {
+          clearInterval(poll);
+          resolve();
+        }
+      }, 2);
+    });
+    const endedAt = performance.now();
+    const run = server.registry.get(runId)!;
+    const elapsed = (endedAt - (firstAt as number)) / 1000;
+    const counts = run.pipeline.counts();
+    dashboard?.close();
+    await new Promise((resolve) => (child.exitCode !== null ? resolve(undefined) : child.once('exit', resolve)));
+    return {
+      encoding,
+      particles,
+      seconds: elapsed,
+      centroidsPerSecond: (counts.centroids - firstCentroids) / elapsed,
+      framesPerSecond: (counts.frames - firstFrames) / elapsed,
+      queue,
+      dashboardMessages,
+      recordedFrames: server.registry.recorder.run(runId)?.frames,
+    };
+  } finally {
+    await server.close();
+    rmSync(data, { recursive: true, force: true });
+  }
+}
+
+if (import.meta.url === `file://${process.argv[1]}`) {
+  const encoding = process.argv[2] === 'json' ? 'json' : 'msgpack';
+  const result = await endToEnd(encoding, Number(process.argv[3] ?? 1000), Number(process.argv[4] ?? 20));
+  console.log(JSON.stringify(result));
+}

@@ -1,0 +1,42 @@
+// Benchmark: the pipeline alone (frames already in typed arrays, ids given, every detector on)
+// against the bare MSD kernel and the naive MSD, measured in the same run.
+// Run: npx tsx tools/bench/pipelineThroughput.ts   (a figure, not a test)
+import { createDetectors } from '../../src/detectors/createDetectors.js';
+import type { Frame } from '../../src/frame.js';
+import { Pipeline } from '../../src/pipeline/pipeline.js';
+import { refreshContext } from '../../src/pipeline/refreshContext.js';
+import { benchFrames } from './benchFrames.js';
+import { machineLine, measureRate, table, type BenchFigure } from './harness.js';
+import { bareMsdKernel, naiveMsd } from './msdPeers.js';
+
+/** Runs one pipeline (every detector on) over `frames`; returns the centroids fed. */
+export function runPipeline(frames: Frame[], lagCount = 16, detectors = true): number {
+  const pipeline = new Pipeline(
+    { frameInterval: 0.001, exposure: 0.0008, radius: 0.5, temperature: 22, lagCount },
+    detectors ? createDetectors : undefined,
+    refreshContext,
+  );
+  let centroids = 0;
+  for (const frame of frames) {
+    pipeline.push(frame);
+    centroids += frame.count;
+  }
+  pipeline.finish();
+  return centroids;
+}
+
+export function pipelineThroughput(runs = 5, particles = 1000, frameCount = 2000): BenchFigure[] {
+  const frames = benchFrames({ particles, frames: frameCount });
+  const bare = measureRate(`bare MSD kernel, ${particles} particles, 16 lags (baseline)`, 'centroids/s', () => bareMsdKernel(frames), runs);
+  const pipeline = measureRate(`pipeline, ids given, ${particles} particles, 16 lags, every detector`, 'centroids/s', () => runPipeline(frames), runs);
+  const noDetectors = measureRate(`pipeline, ids given, no detectors`, 'centroids/s', () => runPipeline(frames, 16, false), runs);
+  const short = frames.slice(0, 200);
+  const naive = measureRate(`naive MSD (recompute every frame, 200 frames)`, 'centroids/s', () => naiveMsd(short), 3);
+  return [bare, pipeline, noDetectors, naive];
+}
+
+if (import.meta.url === `file://${process.argv[1]}`) {
+  const figures = pipelineThroughput(Number(process.argv[2] ?? 5));
+  console.log(machineLine());
+  console.log(table(figures, figures[0]));
+}

@@ -1,0 +1,51 @@
+// Benchmark: memory per live track, measured (array buffers and heap before and after a run
+// holding 10,000 live tracks) and from the layout (bytes per track of each per-track array).
+// Run: node --expose-gc --import tsx tools/bench/trackMemory.ts   (a figure, not a test)
+import { createDetectors } from '../../src/detectors/createDetectors.js';
+import { msdLags } from '../../src/msd/msdLags.js';
+import { Pipeline } from '../../src/pipeline/pipeline.js';
+import { refreshContext } from '../../src/pipeline/refreshContext.js';
+import { statsLayout } from '../../src/pipeline/statsLayout.js';
+import { benchFrames } from './benchFrames.js';
+
+/** Memory figures for `tracks` live tracks. */
+export interface TrackMemory {
+  tracks: number;
+  /** Bytes per track from the layout: the position ring (3 × 8 B + 4 B slot per ring slot) and the rest. */
+  ringBytes: number;
+  otherBytes: number;
+  /** Measured growth of array buffers + heap per live track, bytes (the table's capacity doubles: up to 2× the layout). */
+  measuredPipelineOnly: number;
+  measuredWithDetectors: number;
+}
+
+function used(): number {
+  (globalThis as { gc?: () => void }).gc?.();
+  const m = process.memoryUsage();
+  return m.arrayBuffers + m.heapUsed;
+}
+
+function measure(tracks: number, detectors: boolean): number {
+  const frames = benchFrames({ particles: tracks, frames: 30 });
+  const before = used();
+  const pipeline = new Pipeline({ frameInterval: 0.001, radius: 0.5, temperature: 22 }, detectors ? createDetectors : undefined, refreshContext);
+  for (const frame of frames) pipeline.push(frame);
+  const after = used();
+  if (pipeline.counts().frames !== frames.length) throw new Error('frames refused');
+  return (after - before) / tracks;
+}
+
+export function trackMemory(tracks = 10_000): TrackMemory {
+  const lags = msdLags(16, 128, 10);
+  const ringSize = lags[lags.length - 1] + 1;
+  const layout = statsLayout(2, lags.length);
+  const ringBytes = ringSize * (3 * 8 + 4);
+  // stats record, lastSlot, runStart, mark, length, id (4 B each), firstT, lastT (8 B), group (2 B),
+  // dense id table (4 B), the Map entry of the live table (~40 B, heap)
+  const otherBytes = layout.width * 8 + 5 * 4 + 2 * 8 + 2 + 4 + 40;
+  return { tracks, ringBytes, otherBytes, measuredPipelineOnly: measure(tracks, false), measuredWithDetectors: measure(tracks, true) };
+}
+
+if (import.meta.url === `file://${process.argv[1]}`) {
+  console.log(JSON.stringify(trackMemory()));
+}

@@ -77,10 +77,16 @@ async function api(request: IncomingMessage, response: ServerResponse, path: str
     if (request.method !== 'GET') return failure(response, 405, 'JOSTLE_E_METHOD', 'method not allowed');
     return json(response, 200, registry.list());
   }
-  const id = decodeURIComponent(parts[2]);
+  let id: string;
+  try {
+    id = decodeURIComponent(parts[2]);
+  } catch {
+    return failure(response, 400, 'JOSTLE_E_RUN_ID', 'run id not valid'); // broken %-encoding
+  }
   if (!isRunId(id)) return failure(response, 400, 'JOSTLE_E_RUN_ID', 'run id not valid');
   const leaf = parts[3];
-  const known = registry.recorder.run(id) !== undefined;
+  // in memory (also a run opened after the recording stopped) or recorded
+  const known = registry.get(id) !== undefined;
   if (!known) return failure(response, 404, 'JOSTLE_E_UNKNOWN_RUN', 'no such run');
   if (request.method === 'POST' && leaf === 'tags') {
     let tag;

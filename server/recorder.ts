@@ -70,6 +70,9 @@ CREATE TABLE IF NOT EXISTS summaries (run TEXT NOT NULL, at TEXT NOT NULL, t REA
   diffusion REAL, low REAL, high REAL, worst TEXT);
 `;
 
+/** SQLite result codes that mean the storage itself failed (sqlite.org/rescode.html). */
+const STORAGE_FAILURE = /^SQLITE_(FULL|READONLY|IOERR|CANTOPEN|CORRUPT|NOTADB|PERM)/;
+
 function blob(values: Float64Array | Uint32Array, count: number): Buffer {
   // Buffer.from(arrayBuffer, offset, length) is a view; the second Buffer.from copies, so the
   // row stays valid when the connection reuses its frame buffers for the next message.
@@ -96,6 +99,12 @@ function floats(data: Buffer, count: number): Float64Array {
 export class Recorder {
   private readonly db: Database.Database;
   private readonly statements;
+  /**
+   * Why writing stopped (a full disk, a database that became unwritable), or undefined while the
+   * recording works. Once set, every write is a no-op; reads still give what was committed.
+   */
+  failure: { code: string; message: string } | undefined;
+  private readonly failureListeners: ((failure: { code: string; message: string }) => void)[] = [];
 
   constructor(folder: string, options: { readonly?: boolean } = {}) {
     if (!options.readonly) mkdirSync(folder, { recursive: true });
@@ -130,6 +139,44 @@ export class Recorder {
     };
   }
 
+  /**
+   * Calls `listener` once when writing stops for good (see {@link Recorder.failure}).
+   * @example
+   * recorder.onFailure((f) => log(`recording stopped: ${f.code}`));
+   */
+  onFailure(listener: (failure: { code: string; message: string }) => void): void {
+    this.failureListeners.push(listener);
+  }
+
+  /**
+   * For fault tests: caps the database at its current size plus `extraPages` pages
+   * (SQLite `max_page_count`), so that the next writes fail with `SQLITE_FULL` as on a full disk.
+   * @example
+   * recorder.limitPages(0); // the next batch that needs a new page fails: recording stops
+   */
+  limitPages(extraPages: number): void {
+    if (!(Number.isInteger(extraPages) && extraPages >= 0)) throw new RangeError('Recorder.limitPages requires an integer extraPages >= 0');
+    const pages = Number(this.db.pragma('page_count', { simple: true }));
+    this.db.pragma(`max_page_count = ${pages + extraPages}`);
+  }
+
+  /**
+   * Runs one write; a storage failure (disk full, read-only, I/O error, corrupt or vanished
+   * file) stops the recording instead of throwing: the live run goes on in memory. Any other
+   * error (a bug) is thrown as before.
+   */
+  private write(action: () => unknown): void {
+    if (this.failure) return;
+    try {
+      action();
+    } catch (error) {
+      const code = (error as { code?: unknown }).code;
+      if (typeof code !== 'string' || !STORAGE_FAILURE.test(code)) throw error;
+      this.failure = { code, message: (error as Error).message };
+      for (const listener of this.failureListeners) listener(this.failure);
+    }
+  }
+
   /** Marks runs left live by a previous process as ended and interrupted; returns their number. */
   markInterrupted(): number {
     return this.statements.interrupt!.run().changes;
@@ -161,12 +208,12 @@ export class Recorder {
 
   /** Creates a run, or reopens a recorded one (state live again). */
   openRun(id: string, label: string, settings: string, started: string): void {
-    this.statements.insertRun!.run(id, label, settings, started);
+    this.write(() => this.statements.insertRun!.run(id, label, settings, started));
   }
 
   /** Ends a run, keeping its final report (JSON text). */
   endRun(id: string, finalReport: string, ended: string): void {
-    this.statements.end!.run(ended, finalReport, id);
+    this.write(() => this.statements.end!.run(ended, finalReport, id));
   }
 
   /** Packs a frame into a row (copies its arrays). O(count). */
@@ -188,7 +235,7 @@ export class Recorder {
   writeBatch(rows: readonly RecordRow[]): void {
     if (rows.length === 0) return;
     const s = this.statements;
-    this.db.transaction(() => {
+    this.write(() => this.db.transaction(() => {
       const perRun = new Map<string, { frames: number; bytes: number; last: number }>();
       for (const row of rows) {
         if (row.kind === 'temperature') {
@@ -203,23 +250,25 @@ export class Recorder {
         perRun.set(row.run, entry);
       }
       for (const [run, entry] of perRun) s.runFrames!.run(entry.frames, entry.bytes, entry.last, run);
-    })();
+    })());
   }
 
   /** Records a tag. */
   writeTag(run: string, tag: Tag): void {
-    this.statements.tag!.run(run, tag.label, tag.start, tag.end, tag.note);
+    this.write(() => this.statements.tag!.run(run, tag.label, tag.start, tag.end, tag.note));
   }
 
   /** Records an alert (insert, or update its level and end). */
   writeAlert(run: string, alert: Alert, worst: AlertLevel | null): void {
-    this.statements.alert!.run(run, alert.id, alert.kind, alert.level, alert.start, alert.end, alert.message, JSON.stringify(alert.detail));
-    this.statements.worst!.run(worst, run);
+    this.write(() => {
+      this.statements.alert!.run(run, alert.id, alert.kind, alert.level, alert.start, alert.end, alert.message, JSON.stringify(alert.detail));
+      this.statements.worst!.run(worst, run);
+    });
   }
 
   /** Records a periodic summary row. */
   writeSummary(run: string, at: string, t: number | null, frames: number, diffusion: { value: number; ci95: [number, number] } | null, worst: AlertLevel | null): void {
-    this.statements.summary!.run(run, at, t, frames, diffusion?.value ?? null, diffusion?.ci95[0] ?? null, diffusion?.ci95[1] ?? null, worst);
+    this.write(() => this.statements.summary!.run(run, at, t, frames, diffusion?.value ?? null, diffusion?.ci95[0] ?? null, diffusion?.ci95[1] ?? null, worst));
   }
 
   /**

@@ -77,7 +77,9 @@ export class RigConnection {
       case 'frame': {
         const run = this.liveRun();
         const index = message.index;
-        if (typeof index === 'number' && run.lastIndex !== null && index <= run.lastIndex) {
+        if (typeof index === 'number' && Number.isInteger(index) && index >= 0 && run.lastIndex !== null && index <= run.lastIndex) {
+          // only a well-formed index can be a resent frame; a negative or fractional one is a bad
+          // field (JOSTLE_E_FRAME from the frame check below), never dropped quietly
           if (index <= this.resumeUpTo) {
             run.counters.resentFrames++;
             return;

@@ -8,6 +8,7 @@ import type { Recorder } from './recorder.js';
 import type { RunSettings } from './rigMessageFields.js';
 import { ServerError } from './serverError.js';
 import type { ResolvedServerOptions } from './serverOptions.js';
+import { stopRecording } from './stopRecording.js';
 
 /** What feeds a run: the rig connection (so a reconnect can take over from a stale one). */
 export interface RunFeeder {
@@ -23,6 +24,8 @@ export interface ServerCounters {
   rejectedMessages: number;
   /** Sockets terminated by the heartbeat. */
   terminatedPeers: number;
+  /** Dashboard messages (`tag`, `ack`, anything else) rejected with `error`. */
+  rejectedDashboardMessages: number;
 }
 
 /**
@@ -35,7 +38,7 @@ export interface ServerCounters {
  * registry.open(settings, feeder) // → { run, resumed: false }
  */
 export class RunRegistry {
-  readonly counters: ServerCounters = { oversizedMessages: 0, rejectedMessages: 0, terminatedPeers: 0 };
+  readonly counters: ServerCounters = { oversizedMessages: 0, rejectedMessages: 0, terminatedPeers: 0, rejectedDashboardMessages: 0 };
   readonly listWatchers = new Set<DashboardChannel>();
   private readonly runs = new Map<string, LiveRun>();
   private readonly changes$ = new Subject<void>();
@@ -52,6 +55,12 @@ export class RunRegistry {
         const message = { type: 'runs' as const, runs: this.list() };
         for (const watcher of this.listWatchers) watcher.send(message);
       });
+    // A full disk or an unwritable database stops the recording, never the monitoring.
+    recorder.onFailure((failure) => {
+      options.log(`jostle: recording stopped: ${failure.code} (${failure.message}); runs go on in memory`);
+      for (const run of this.runs.values()) stopRecording(run, failure.code);
+      this.changed();
+    });
   }
 
   /** The run list: recorded runs, with live figures for those in memory. */
@@ -83,6 +92,7 @@ export class RunRegistry {
       }
     }
     run.rigSocket = feeder;
+    if (this.recorder.failure) stopRecording(run, this.recorder.failure.code);
     this.evictEnded();
     this.changed();
     return { run, resumed };

@@ -34,6 +34,14 @@ function refuse(socket: Duplex, status: number, text: string): void {
   socket.destroy();
 }
 
+/** Checks an `ack {alert: id}` from a dashboard: the id must name an alert of the run. */
+function parseAck(message: Record<string, unknown>, run: { pipeline: { alerts(): { alerts(): readonly { id: string }[] } } }): string {
+  const id = message.alert;
+  if (typeof id !== 'string' || id.length === 0 || id.length > 200) throw new ServerError('JOSTLE_E_ACK', 'ack alert must be an alert id');
+  if (!run.pipeline.alerts().alerts().some((alert) => alert.id === id)) throw new ServerError('JOSTLE_E_ACK', 'ack names no alert of this run');
+  return id;
+}
+
 /**
  * Starts the live server (CONTRACTS §1 `jostle serve`, §4): one HTTP server carrying the
  * WebSocket endpoints `/rig` and `/watch` (ws, `maxPayload`, per-message deflate off, ping/pong
@@ -99,6 +107,13 @@ export async function startServer(options: ServerOptions = {}, scheduler: Schedu
         channel.dispose();
       });
       channel.send({ type: 'runs', runs: registry.list() });
+      let listSeq = 0;
+      ws.on('message', () => {
+        // the run list takes no messages: say so, count it, stay open
+        listSeq++;
+        registry.counters.rejectedDashboardMessages++;
+        channel.send({ type: 'error', code: 'JOSTLE_E_TYPE', reason: 'the run list takes no messages: watch a run to send tag or ack', seq: listSeq });
+      });
       return;
     }
     const run = registry.get(runId);
@@ -110,13 +125,15 @@ export async function startServer(options: ServerOptions = {}, scheduler: Schedu
     ws.on('message', (data, isBinary) => {
       seq++;
       try {
-        const message = decodeMessage(data as Buffer, isBinary);
+        const message = decodeMessage(Array.isArray(data) ? Buffer.concat(data) : (data as Buffer), isBinary);
         if (message.type === 'tag') run.input({ kind: 'tag', tag: parseTagMessage(message) });
-        else if (message.type === 'ack' && typeof message.alert === 'string') run.input({ kind: 'ack', alert: message.alert });
+        else if (message.type === 'ack') run.input({ kind: 'ack', alert: parseAck(message, run) });
         else throw new ServerError('JOSTLE_E_TYPE', 'message type is not known');
       } catch (error) {
-        const code = error instanceof ServerError ? error.code : 'JOSTLE_E_INTERNAL';
-        channel.send({ type: 'error', code, reason: (error as Error).message, seq });
+        registry.counters.rejectedDashboardMessages++;
+        const known = error instanceof ServerError;
+        if (!known) o.log(`jostle: dashboard message failed: ${(error as Error)?.message}`);
+        channel.send({ type: 'error', code: known ? error.code : 'JOSTLE_E_INTERNAL', reason: known ? error.message : 'message could not be handled', seq });
       }
     });
   }
@@ -134,10 +151,20 @@ export async function startServer(options: ServerOptions = {}, scheduler: Schedu
     }
   });
 
-  await new Promise<void>((resolvePromise, reject) => {
-    http.once('error', reject);
-    http.listen(o.port, o.host, () => resolvePromise());
-  });
+  try {
+    await new Promise<void>((resolvePromise, reject) => {
+      http.once('error', reject);
+      http.listen(o.port, o.host, () => resolvePromise());
+    });
+  } catch (error) {
+    // the port is taken or the address is not ours: release everything, so that the process
+    // can exit (a running heartbeat would keep it alive)
+    heartbeat.unsubscribe();
+    wss.close();
+    registry.dispose();
+    recorder.close();
+    throw error;
+  }
   const address = http.address();
   const port = typeof address === 'object' && address ? address.port : o.port;
   const hostText = o.host.includes(':') ? `[${o.host}]` : o.host;

@@ -41,16 +41,25 @@ export async function startFromFlags(options: ServerOptions): Promise<JostleServ
   }
 }
 
-/** Resolves on SIGINT or SIGTERM. */
-export function untilSignal(): Promise<void> {
+/**
+ * Resolves on SIGINT or SIGTERM; `cancel` aborted removes the handlers (the promise then never
+ * resolves).
+ * @example
+ * await untilSignal(); // → after Ctrl-C
+ */
+export function untilSignal(cancel?: AbortSignal): Promise<void> {
   return new Promise((resolve) => {
-    const done = () => {
+    const off = () => {
       process.off('SIGINT', done);
       process.off('SIGTERM', done);
+    };
+    const done = () => {
+      off();
       resolve();
     };
     process.on('SIGINT', done);
     process.on('SIGTERM', done);
+    cancel?.addEventListener('abort', off, { once: true });
   });
 }
 
@@ -60,8 +69,18 @@ export function untilSignal(): Promise<void> {
  * cleanly (recording flushed).
  */
 export async function runServe(flags: ServeFlags, stdout: NodeJS.WritableStream): Promise<void> {
-  const server = await startFromFlags(serveOptions(flags));
+  // Listen for the signals before the URL is printed: whoever reads that line may stop the
+  // server at once, and must get a clean close (recording flushed), not the default kill.
+  const stop = new AbortController();
+  const signalled = untilSignal(stop.signal);
+  let server: JostleServer;
+  try {
+    server = await startFromFlags(serveOptions(flags));
+  } catch (error) {
+    stop.abort(); // not started: the signals get their default meaning back
+    throw error;
+  }
   stdout.write(`${server.url}\n`);
-  await untilSignal();
+  await signalled;
   await server.close();
 }

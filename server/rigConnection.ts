@@ -39,6 +39,11 @@ export class RigConnection {
     });
   }
 
+  /** Whether this socket has opened a run (sent an accepted `run` message). */
+  get hasRun(): boolean {
+    return this.run !== undefined;
+  }
+
   /** What the run sees of this connection. */
   private readonly feeder = {
     close: (code?: number, reason?: string) => this.socket.close(code, reason),

@@ -18,6 +18,10 @@ export interface ServerOptions {
   maxRuns?: number;
   /** Most dashboards watching one run (default 32); a further one is closed with 1013. */
   maxDashboardsPerRun?: number;
+  /** Most dashboards watching the run list (`/watch` without a run) at once (default 64); a further one is closed with 1013. */
+  maxRunListWatchers?: number;
+  /** A rig socket that has not opened a run (`run` message) within this time is closed with 1008, ms (default 30 000). */
+  rigOpenTimeoutMs?: number;
   /**
    * Messages that are never coalesced (snapshot, alerts, run lists) queued for one slow dashboard
    * before it is closed with 1013 (default 32); its updates coalesce to one pending update.
@@ -56,6 +60,8 @@ export const SERVER_DEFAULTS = {
   maxParticlesPerFrame: 100_000,
   maxRuns: 16,
   maxDashboardsPerRun: 32,
+  maxRunListWatchers: 64,
+  rigOpenTimeoutMs: 30_000,
   dashboardQueueLength: 32,
   dashboardHighWaterBytes: 1024 * 1024,
   quotaBytes: 2 * 1024 ** 3,
@@ -93,6 +99,8 @@ export function resolveServerOptions(options: ServerOptions = {}): ResolvedServe
   integer('maxParticlesPerFrame', 1);
   integer('maxRuns', 1);
   integer('maxDashboardsPerRun', 1);
+  integer('maxRunListWatchers', 1);
+  integer('rigOpenTimeoutMs', 10);
   integer('dashboardQueueLength', 1);
   integer('dashboardHighWaterBytes', 1);
   integer('quotaBytes', 1);

@@ -93,7 +93,15 @@ export async function startServer(options: ServerOptions = {}, scheduler: Schedu
       ws.on('error', (error: Error & { code?: string }) => {
         if (error.code === 'WS_ERR_UNSUPPORTED_MESSAGE_LENGTH') registry.counters.oversizedMessages++;
       });
-      if (raw === '/rig') new RigConnection(ws, registry);
+      if (raw === '/rig') {
+        const rig = new RigConnection(ws, registry);
+        // a socket that never opens a run holds a connection for nothing: close it after a while
+        const timer = setTimeout(() => {
+          if (!rig.hasRun && ws.readyState === ws.OPEN) ws.close(1008, 'no run message');
+        }, o.rigOpenTimeoutMs);
+        timer.unref();
+        ws.on('close', () => clearTimeout(timer));
+      }
       else watch(ws, runId, query.get('encoding') === 'msgpack' ? 'msgpack' : 'json');
     });
   });
@@ -101,6 +109,10 @@ export async function startServer(options: ServerOptions = {}, scheduler: Schedu
   function watch(ws: WebSocket, runId: string | null, encoding: Encoding): void {
     const channel = new DashboardChannel(ws, encoding, { queueLength: o.dashboardQueueLength, highWaterBytes: o.dashboardHighWaterBytes });
     if (runId === null) {
+      if (registry.listWatchers.size >= o.maxRunListWatchers) {
+        channel.dispose();
+        return ws.close(1013, 'too many run-list watchers');
+      }
       registry.listWatchers.add(channel);
       ws.on('close', () => {
         registry.listWatchers.delete(channel);

@@ -14,7 +14,7 @@ describe('resolveServerOptions', () => {
   it('fills every limit with its documented default', () => {
     const o = resolveServerOptions({ log: () => undefined });
     expect(o).toMatchObject({
-      host: '127.0.0.1', maxPayloadBytes: 16 * 1024 * 1024, maxParticlesPerFrame: 100_000, maxRuns: 16, maxDashboardsPerRun: 32,
+      host: '127.0.0.1', maxPayloadBytes: 16 * 1024 * 1024, maxParticlesPerFrame: 100_000, maxRuns: 16, maxDashboardsPerRun: 32, maxRunListWatchers: 64, rigOpenTimeoutMs: 30_000,
       dashboardQueueLength: 32, dashboardHighWaterBytes: 1024 * 1024, quotaBytes: 2 * 1024 ** 3, heartbeatMs: 15_000, flushMs: 250,
     });
     expect(o.allowRemote).toBe(false);
@@ -26,6 +26,8 @@ describe('resolveServerOptions', () => {
       maxParticlesPerFrame: [0, -5, 2.5, Infinity],
       maxRuns: [0, -1, 1.1],
       maxDashboardsPerRun: [0, NaN],
+      maxRunListWatchers: [0, 1.5],
+      rigOpenTimeoutMs: [0, 9],
       dashboardQueueLength: [0, 0.5],
       dashboardHighWaterBytes: [0, -1],
       quotaBytes: [0, -1, 0.5],

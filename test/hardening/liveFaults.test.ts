@@ -179,3 +179,38 @@ describe("the rig's clock", () => {
     await rig.close();
   }, 20_000);
 });
+
+describe('idle and surplus sockets', () => {
+  it('closes a rig socket that never sends run, with 1008, after rigOpenTimeoutMs', async () => {
+    const s = await server({ rigOpenTimeoutMs: 200 });
+    const idle = new WebSocket(`${s.ws}/rig`, { headers: auth });
+    await new Promise((r) => idle.once('open', r));
+    const started = Date.now();
+    const code = await new Promise<number>((r) => idle.once('close', (c) => r(c)));
+    expect(code).toBe(1008);
+    expect(Date.now() - started).toBeGreaterThanOrEqual(150);
+  });
+
+  it('keeps a rig socket that opened a run past rigOpenTimeoutMs', async () => {
+    const s = await server({ rigOpenTimeoutMs: 200 });
+    const rig = await RigClient.connect(`${s.ws}/rig`, { token: TOKEN });
+    await rig.open({ type: 'run', run: 'kept', frameInterval: 0.05 });
+    await new Promise((r) => setTimeout(r, 400));
+    const [frame] = brownianFrames({ seed: 4, particles: 3, frames: 1, frameInterval: 0.05, diffusion: 0.4 });
+    await rig.frame(frame);
+    await until(() => s.registry.get('kept')?.listEntry().frames === 1);
+    await rig.close();
+  });
+
+  it('closes run-list watchers beyond maxRunListWatchers with 1013', async () => {
+    const s = await server({ maxRunListWatchers: 2 });
+    const first = await collect(`${s.ws}/watch`, auth);
+    const second = await collect(`${s.ws}/watch`, auth);
+    const third = await collect(`${s.ws}/watch`, auth);
+    expect(await new Promise<number>((r) => third.socket.once('close', (c) => r(c)))).toBe(1013);
+    expect(first.socket.readyState).toBe(WebSocket.OPEN);
+    expect(second.socket.readyState).toBe(WebSocket.OPEN);
+    first.socket.close();
+    second.socket.close();
+  });
+});

@@ -7,7 +7,9 @@
 // timing alert closes only after a clean block and a 5 s hold). Memory (RSS, heap, array
 // buffers) and the queue are sampled every `sampleSeconds`.
 // Run: npx tsx tools/bench/liveLatency.ts [particles=1000] [fps=100] [seconds=30] [sampleSeconds=5] [warmupSeconds=10]
-// The 10-minute soak: npx tsx tools/bench/liveLatency.ts 1000 100 600 30
+// The 10-minute soak: npx tsx tools/bench/liveLatency.ts 1000 100 600 30 30
+// A 7th argument `probe` also lists the server-side calls slower than 50 ms (push, report,
+// recording batches, summary rows, dashboard updates) and the frames later than 200 ms.
 import { spawn } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -34,6 +36,12 @@ export interface LiveLatencyResult {
   dashboardMessages: number;
   /** Memory samples: seconds since start, RSS MiB, heap used MiB, array buffers MiB, queue frames. */
   memory: { t: number; rssMiB: number; heapMiB: number; arrayBuffersMiB: number; queue: number }[];
+  /** CPU time of this process (server, pipeline, recording and the dashboard client), % of one core over the run. */
+  cpuPercent: number;
+  /** With `probe`: server-side calls slower than 50 ms (seconds since start, what, ms), slowest first. */
+  slowCalls?: string[];
+  /** With `probe`: the frames whose latency exceeded 200 ms, as runs of consecutive indices. */
+  spikes?: string[];
 }
 
 function quantile(sorted: number[], p: number): number {
@@ -41,7 +49,7 @@ function quantile(sorted: number[], p: number): number {
   return sorted[Math.min(sorted.length - 1, Math.floor(p * sorted.length))];
 }
 
-export async function liveLatency(particles = 1000, fps = 100, seconds = 30, sampleSeconds = 5, warmupSeconds = 10): Promise<LiveLatencyResult> {
+export async function liveLatency(particles = 1000, fps = 100, seconds = 30, sampleSeconds = 5, warmupSeconds = 10, probe = false): Promise<LiveLatencyResult> {
   const data = mkdtempSync(join(tmpdir(), 'jostle-bench-'));
   const server = await startServer({ port: 0, host: '127.0.0.1', data, token: 'bench-token-123', log: () => undefined });
   const unpackr = new Unpackr({ useRecords: false, mapsAsObjects: true });
@@ -63,6 +71,32 @@ export async function liveLatency(particles = 1000, fps = 100, seconds = 30, sam
     const sentAt = new Map<number, number>();
     const doneAt = new Map<number, number>();
     const frameLatencies: number[] = [];
+    const slow: { at: number; what: string; ms: number }[] = [];
+    const spikeFrames: { i: number; ms: number }[] = [];
+    const note = (i: number, ms: number): void => {
+      if (probe && ms > 200) spikeFrames.push({ i, ms });
+    };
+    /** With `probe`, wraps `object[name]` to note calls slower than 50 ms. */
+    const timeCalls = (object: Record<string, unknown>, name: string, what: string): void => {
+      if (!probe) return;
+      const original = (object[name] as (...args: unknown[]) => unknown).bind(object);
+      object[name] = (...args: unknown[]) => {
+        const a = performance.now();
+        const result = original(...args);
+        const ms = performance.now() - a;
+        if (ms > 50) slow.push({ at: (a - began) / 1000, what, ms });
+        return result;
+      };
+    };
+    // With `probe`: gaps in a 10 ms timer (the event loop blocked, whatever blocked it).
+    let tick = performance.now();
+    const ticker = probe
+      ? setInterval(() => {
+          const now = performance.now();
+          if (now - tick > 100) slow.push({ at: (tick - began) / 1000, what: 'event loop blocked', ms: now - tick });
+          tick = now;
+        }, 10)
+      : undefined;
     const lines = createInterface({ input: child.stdout });
     lines.on('line', (line) => {
       const status = JSON.parse(line) as { sent?: number; inject?: number; i?: number; s?: number };
@@ -71,6 +105,7 @@ export async function liveLatency(particles = 1000, fps = 100, seconds = 30, sam
         const done = doneAt.get(status.i);
         if (done !== undefined) {
           if (status.i >= warmupFrames) frameLatencies.push(done - (status.s as number));
+          note(status.i, done - (status.s as number));
           doneAt.delete(status.i);
         } else {
           sentAt.set(status.i, status.s as number);
@@ -82,6 +117,7 @@ export async function liveLatency(particles = 1000, fps = 100, seconds = 30, sam
     let dashboard: WebSocket | undefined;
     let dashboardMessages = 0;
     const began = performance.now();
+    const cpuBefore = process.cpuUsage();
     const sampler = setInterval(() => {
       const m = process.memoryUsage();
       const run = server.registry.get(runId);
@@ -101,16 +137,26 @@ export async function liveLatency(particles = 1000, fps = 100, seconds = 30, sam
           const pipeline = run.pipeline;
           const push = pipeline.push.bind(pipeline);
           pipeline.push = (frame) => {
+            const a = performance.now();
             push(frame);
+            if (probe && performance.now() - a > 50) slow.push({ at: (a - began) / 1000, what: `push ${frame.index}`, ms: performance.now() - a });
             const now = performance.timeOrigin + performance.now();
             const at = sentAt.get(frame.index);
             if (at !== undefined) {
               if (frame.index >= warmupFrames) frameLatencies.push(now - at);
+              note(frame.index, now - at);
               sentAt.delete(frame.index);
             } else {
               doneAt.set(frame.index, now);
             }
           };
+          timeCalls(run as unknown as Record<string, unknown>, 'report', 'report');
+          const recorder = (run as unknown as { recorder: Record<string, unknown> }).recorder;
+          timeCalls(recorder, 'writeBatch', 'writeBatch');
+          timeCalls(recorder, 'writeSummary', 'writeSummary');
+          timeCalls(recorder, 'writeAlert', 'writeAlert');
+          timeCalls(run as unknown as Record<string, unknown>, 'broadcastUpdate', 'dashboard update');
+          timeCalls(run as unknown as Record<string, unknown>, 'recordSummary', 'summary row');
           dashboard = new WebSocket(`ws://127.0.0.1:${server.port}/watch?run=${runId}&token=${server.token}`);
           dashboard.on('message', (raw, isBinary) => {
             const message = (isBinary ? unpackr.unpack(raw as Buffer) : JSON.parse(String(raw))) as { type: string; kind?: string; change?: string };
@@ -127,9 +173,21 @@ export async function liveLatency(particles = 1000, fps = 100, seconds = 30, sam
       }, 5);
     });
     clearInterval(sampler);
+    const cpu = process.cpuUsage(cpuBefore);
+    const cpuPercent = (100 * (cpu.user + cpu.system)) / 1000 / (performance.now() - began);
+    if (ticker) clearInterval(ticker);
     dashboard?.close();
     await new Promise((resolve) => (child.exitCode !== null ? resolve(undefined) : child.once('exit', resolve)));
     frameLatencies.sort((a, b) => a - b);
+    const spikes: string[] = [];
+    for (let k = 0; k < spikeFrames.length; ) {
+      let j = k;
+      let worst = spikeFrames[k].ms;
+      while (j + 1 < spikeFrames.length && spikeFrames[j + 1].i <= spikeFrames[j].i + 2) worst = Math.max(worst, spikeFrames[++j].ms);
+      spikes.push(`frames ${spikeFrames[k].i}–${spikeFrames[j].i} (${(spikeFrames[k].i / fps).toFixed(1)} s): worst ${worst.toFixed(0)} ms`);
+      k = j + 1;
+    }
+    slow.sort((a, b) => b.ms - a.ms);
     return {
       particles,
       fps,
@@ -141,7 +199,9 @@ export async function liveLatency(particles = 1000, fps = 100, seconds = 30, sam
       maxMs: frameLatencies[frameLatencies.length - 1] ?? NaN,
       alertMs: latencies,
       dashboardMessages,
+      cpuPercent,
       memory,
+      ...(probe ? { slowCalls: slow.slice(0, 40).map((c) => `${c.at.toFixed(1)} s ${c.what} ${c.ms.toFixed(0)} ms`), spikes } : {}),
     };
   } finally {
     await server.close();
@@ -150,6 +210,6 @@ export async function liveLatency(particles = 1000, fps = 100, seconds = 30, sam
 }
 
 if (import.meta.url === `file://${process.argv[1]}`) {
-  const result = await liveLatency(Number(process.argv[2] ?? 1000), Number(process.argv[3] ?? 100), Number(process.argv[4] ?? 30), Number(process.argv[5] ?? 5), Number(process.argv[6] ?? 10));
+  const result = await liveLatency(Number(process.argv[2] ?? 1000), Number(process.argv[3] ?? 100), Number(process.argv[4] ?? 30), Number(process.argv[5] ?? 5), Number(process.argv[6] ?? 10), process.argv[7] === 'probe');
   console.log(JSON.stringify(result));
 }

@@ -69,4 +69,24 @@ describe('PointGrid', () => {
       expect(grid.nearest(Float64Array.of(3), Float64Array.of(4), 0, new Float64Array(1))).toBe(-1);
     });
   });
+  describe('#closePairs', () => {
+    it('closePairs(x, y, count, r, out) lists every pair i < j with d ≤ r, ascending, as a brute-force search does', () => {
+      for (const seed of [1, 2, 3]) {
+        const { x, y } = points(300, 40, 30, seed);
+        const grid = new PointGrid();
+        grid.build(x, y, 300, 1.5);
+        let out = new Float64Array(4);
+        let n = grid.closePairs(x, y, 300, 1.5, out);
+        if (n < 0) {
+          out = new Float64Array(-n);
+          n = grid.closePairs(x, y, 300, 1.5, out);
+        }
+        const expected: number[] = [];
+        for (let i = 0; i < 300; i++) {
+          for (let j = i + 1; j < 300; j++) if ((x[i] - x[j]) ** 2 + (y[i] - y[j]) ** 2 <= 1.5 * 1.5) expected.push(i * 300 + j);
+        }
+        expect(Array.from(out.subarray(0, n))).toEqual(expected);
+      }
+    });
+  });
 });

@@ -4,5 +4,10 @@
 import { register } from 'tsx/esm/api';
 
 register();
+// Output piped into a command that stops reading (`| head`) is not an error of ours: end quietly.
+process.stdout.on('error', (error) => {
+  if (error.code === 'EPIPE') process.exit(process.exitCode ?? 0);
+  throw error;
+});
 const { main } = await import('./cli/main.ts');
 process.exitCode = await main(process.argv);

@@ -96,3 +96,19 @@ export const scenarios: Record<string, SimulationOptions> = {
     ],
   },
 };
+
+/** One line on what each named scenario shows (for `jostle simulate --list`). */
+export const scenarioDescriptions: Record<string, string> = {
+  clean: '60 s of free beads, no fault (the null case)',
+  drift: 'the stage starts to creep at (0.15, −0.05) µm/s at 20 s',
+  vibration: 'a 7.3 Hz, 80 nm shake along y from 120 s',
+  heating: 'the sample warms by 3 K/min from 150 s while the sensor stays at 21.0 °C',
+  mismatch: 'the sample is 5 K warmer than reported, all run',
+  clumping: 'a dense re-suspended lot whose beads start to stick at 90 s',
+  focus: 'the focus slips at 120 s: σ from 30 nm to 120 nm, D unchanged',
+  'dropped-frames': 'dropped bursts, duplicates, timestamp jitter and a clock set back at 45 s',
+  crowded: 'a dense hard-core suspension, no sticking (a clumping negative control)',
+  oscillator: 'one trapped bead driven at 4 Hz among free beads (a vibration negative control)',
+  'bad-rows': 'the clean run with 0.5 % malformed rows in its CSV',
+  demo: '10 minutes: drift, vibration, heating and clumping one after the other, with tags',
+};

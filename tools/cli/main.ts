@@ -1,7 +1,7 @@
 import { Command, CommanderError, Option } from 'commander';
 import { mkdir } from 'node:fs/promises';
 import { dirname, join } from 'node:path';
-import { scenarios } from '../../src/simulate/scenarios.js';
+import { scenarioDescriptions, scenarios } from '../../src/simulate/scenarios.js';
 import type { SimulationOptions } from '../../src/simulate/simulationOptions.js';
 import { writeSimulation } from '../simulate/writeSimulation.js';
 import { analyzeFile, type AnalyzeFlags } from './analyze.js';
@@ -106,7 +106,8 @@ function buildProgram(io: Io): Command {
     .action(async (name: string, flags: SimulateFlags) => {
       if (flags.list) {
         for (const [key, value] of Object.entries(scenarios)) {
-          io.stdout.write(`${key}\t${value.frames} frames\t${(value as { description?: string }).description ?? ''}\n`);
+          const seconds = value.frames * (value.frameInterval ?? 0.05);
+          io.stdout.write(`${key}\t${value.frames} frames (${seconds.toFixed(0)} s)\t${scenarioDescriptions[key] ?? ''}\n`);
         }
         return;
       }

@@ -11,7 +11,6 @@ import type { Tag } from '../tag.js';
 import { buildReport, type ReportInput } from './buildReport.js';
 import { resolvePipelineOptions, type PipelineOptions, type ResolvedPipelineOptions } from './pipelineOptions.js';
 import {
-  addStats,
   CVE_PAIRS,
   CVE_STEPS,
   CVE_SUM,
@@ -68,7 +67,6 @@ export class Pipeline {
   private blocks: TimeBlocks | undefined;
   private readonly lags: Int32Array;
   private readonly ringSize: number;
-  private readonly linker: Linker | undefined;
   private readonly detectors: Detector[];
   private readonly alertEngine: AlertEngine;
   private readonly counters: PipelineCounters = {
@@ -132,7 +130,6 @@ export class Pipeline {
     this.lags = msdLags(o.lagCount, o.maxLag, o.consecutiveLags);
     this.ringSize = this.lags[this.lags.length - 1] + 1;
     this.blur = o.frameInterval > 0 ? o.exposure / (6 * o.frameInterval) : 0;
-    this.linker = undefined;
     this.detectors = detectorFactory ? detectorFactory(this.options) : [];
     this.alertEngine = new AlertEngine();
     this.contextRefresher = contextRefresher;
@@ -147,10 +144,10 @@ export class Pipeline {
       expectedDiffusionSd: undefined,
       radius: o.radius,
     };
-    this.lazyLinker = o.maxDisplacement;
+    this.maxDisplacement = o.maxDisplacement;
   }
 
-  private lazyLinker: number | undefined;
+  private readonly maxDisplacement: number | undefined;
   private linkerInstance: Linker | undefined;
 
   /** The MSD lags in use, frames. */
@@ -359,7 +356,7 @@ export class Pipeline {
   private linkerFor(): Linker {
     if (!this.linkerInstance) {
       this.linkerInstance = new Linker({
-        maxDisplacement: this.lazyLinker,
+        maxDisplacement: this.maxDisplacement,
         initialMaxDisplacement: this.options.initialMaxDisplacement,
         maxGapFrames: this.options.maxGapFrames,
       });
@@ -456,7 +453,7 @@ export class Pipeline {
       mean[0] /= stepCount;
       mean[1] /= stepCount;
       mean[2] = zSum / stepCount;
-      if (stepCount >= 2) this.accumulateCommonMode(stepCount, mean, slot);
+      if (stepCount >= 2) this.accumulateCommonMode(stepCount, mean);
       this.commonModeSlots += 1;
       // Frames where the gap steps (after a drop) cover more slots are added by slot count below.
     } else if (gapCount > 0) {
@@ -665,7 +662,7 @@ export class Pipeline {
   private groupSeen: Uint8Array = new Uint8Array(0);
   private driftRunStart = 0;
 
-  private accumulateCommonMode(stepCount: number, mean: Float64Array, slot: number): void {
+  private accumulateCommonMode(stepCount: number, mean: Float64Array): void {
     const steps = this.steps;
     const cm = this.commonMode;
     // within-frame sums of squares per axis, for s_t (self-calibrating SE) and the pooled variance
@@ -695,7 +692,6 @@ export class Pipeline {
     this.commonModeFrames++;
     this.inverseCountFrames += 1;
     this.inverseCountSteps += n;
-    void slot;
   }
 
   private foldEnded(ended: readonly EndedTrack[]): void {
@@ -752,9 +748,6 @@ export class Pipeline {
       }
     }
   }
-
-  /** @internal for tests: add a statistics record into another. */
-  static addStats = addStats;
 }
 
 /**

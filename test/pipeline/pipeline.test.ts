@@ -202,3 +202,19 @@ describe('Pipeline rolling window and third axis', () => {
     expect(Math.abs(report.msd[0].value / (6 * 0.3 * 0.05) - 1)).toBeLessThan(0.05);
   });
 });
+
+describe('Pipeline with its detectors', () => {
+  it('tells the timing detector about a duplicated frame it skips, which raises a timing alert', async () => {
+    const { createDetectors } = await import('../../src/detectors/createDetectors.js');
+    const frames = brownianFrames({ seed: 31, particles: 10, frames: 40, frameInterval: 0.05, diffusion: 0.3 });
+    const pipeline = new Pipeline({ frameInterval: 0.05, exposure: 0 }, createDetectors);
+    frames.forEach((f, i) => {
+      pipeline.push(f);
+      if (i === 20) pipeline.push(f); // the same frame again: same index and time
+    });
+    expect(pipeline.counts().duplicateFrames).toBe(1);
+    const alert = pipeline.report().alerts.find((a) => a.kind === 'timing' && a.detail.key === 'timing:duplicated');
+    expect(alert).toBeDefined();
+    expect(alert!.start).toBeCloseTo(frames[20].t, 9);
+  });
+});

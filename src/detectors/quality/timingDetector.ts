@@ -122,6 +122,28 @@ export class TimingDetector implements Detector<TimingSummary> {
     return c ? [c] : [];
   }
 
+  /**
+   * The pipeline calls this for a frame it skipped as a duplicate (same time slot, same index or
+   * same time as the previous frame), which therefore never reaches `push`.
+   */
+  noteDuplicate(t: number, frameIndex: number): Condition[] {
+    const out: Condition[] = [];
+    if (!Number.isFinite(t)) return out;
+    const reference = this.ringCount >= 5 ? this.median() : this.interval;
+    this.duplicate(t, frameIndex, t - this.previousT, reference, out);
+    return out;
+  }
+
+  private duplicate(t: number, frameIndex: number, delta: number, reference: number, out: Condition[]): void {
+    this.duplicated++;
+    this.blockDuplicates++;
+    if (this.duplicatedEvents.length < this.options.maxEvents) this.duplicatedEvents.push({ t, frameIndex });
+    const c = this.set('timing:duplicated', 'warn', t,
+      `Frame ${frameIndex} at ${t} s repeats the previous one (interval ${fmt(delta)} s against ${fmt(reference)} s; ${this.duplicated} so far). A repeated frame gives zero steps and biases D low; check the camera buffer and the frame grabber settings`,
+      { name: 'duplicated frames', value: this.duplicated, threshold: 0 }, { name: 'interval', value: delta, ci95: null, unit: 's' });
+    if (c) out.push(c);
+  }
+
   /** Feed one frame; returns the conditions that changed. */
   push(steps: FrameSteps, _context: DetectorContext): readonly Condition[] {
     const out: Condition[] = [];
@@ -135,13 +157,7 @@ export class TimingDetector implements Detector<TimingSummary> {
       this.interval = reference;
       const repeated = steps.frameIndex === this.previousIndex || delta === 0;
       if (repeated || delta < 0.5 * reference) {
-        this.duplicated++;
-        this.blockDuplicates++;
-        if (this.duplicatedEvents.length < this.options.maxEvents) this.duplicatedEvents.push({ t, frameIndex: steps.frameIndex });
-        const c = this.set('timing:duplicated', 'warn', t,
-          `Frame ${steps.frameIndex} at ${t} s repeats the previous one (interval ${fmt(delta)} s against ${fmt(reference)} s; ${this.duplicated} so far). A repeated frame gives zero steps and biases D low; check the camera buffer and the frame grabber settings`,
-          { name: 'duplicated frames', value: this.duplicated, threshold: 0 }, { name: 'interval', value: delta, ci95: null, unit: 's' });
-        if (c) out.push(c);
+        this.duplicate(t, steps.frameIndex, delta, reference, out);
       } else {
         let missing = 0;
         if (delta > 1.5 * reference) missing = Math.round(delta / reference) - 1;

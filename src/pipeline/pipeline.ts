@@ -309,6 +309,9 @@ export class Pipeline {
     this.frameCve = new Float64Array(this.layout.width);
     this.frameLag = new Float64Array(o.groups * this.layout.width);
     this.groupSeen = new Uint8Array(o.groups);
+    this.lagFromIndex = new Int32Array(this.lags.length);
+    this.lagUsable = new Uint8Array(this.lags.length);
+    this.lagDrift = new Float64Array(this.lags.length * 3);
     this.driftRing = new Float64Array(this.ringSize * 3);
     this.driftRingSlot = new Int32Array(this.ringSize).fill(-1);
     this.firstT = frame.t;
@@ -418,17 +421,17 @@ export class Pipeline {
       if (y > box.yMax) box.yMax = y;
       const last = tracks.lastSlot[index];
       if (last === slot - 1) {
-        const ring = tracks.ringBase(index, last, this.ringSize);
+        const cell = tracks.ringCell(index, last);
         steps.stepParticle[stepCount] = present;
-        steps.dx[stepCount] = x - tracks.ring[ring];
-        steps.dy[stepCount] = y - tracks.ring[ring + 1];
+        steps.dx[stepCount] = x - tracks.ring[2 * cell];
+        steps.dy[stepCount] = y - tracks.ring[2 * cell + 1];
         stepCount++;
       } else if (last >= 0 && slot - last <= o.maxGapFrames + 1) {
-        const ring = tracks.ringBase(index, last, this.ringSize);
+        const cell = tracks.ringCell(index, last);
         const base = gapCount * 3;
-        this.gapDx[base] = (x - tracks.ring[ring]) / (slot - last);
-        this.gapDx[base + 1] = (y - tracks.ring[ring + 1]) / (slot - last);
-        this.gapDx[base + 2] = slot - last;
+        this.gapDx[base] = (x - tracks.ring[2 * cell]) / (slot - last);
+        this.gapDx[base + 1] = (y - tracks.ring[2 * cell + 1]) / (slot - last);
+        this.gapDx[base + 2] = dims === 3 ? (zp - tracks.ringZ[cell]) / (slot - last) : 0;
         gapCount++;
       }
       present++;
@@ -446,8 +449,7 @@ export class Pipeline {
         mean[1] += steps.dy[s];
         if (dims === 3) {
           const p = steps.stepParticle[s];
-          const ring = tracks.ringBase(this.trackIndex[p], slot - 1, this.ringSize);
-          zSum += this.stepZ[p] - tracks.ring[ring + 2];
+          zSum += this.stepZ[p] - tracks.ringZ[tracks.ringCell(this.trackIndex[p], slot - 1)];
         }
       }
       mean[0] /= stepCount;
@@ -461,9 +463,11 @@ export class Pipeline {
       for (let g = 0; g < gapCount; g++) {
         mean[0] += this.gapDx[g * 3];
         mean[1] += this.gapDx[g * 3 + 1];
+        mean[2] += this.gapDx[g * 3 + 2];
       }
       mean[0] /= gapCount;
       mean[1] /= gapCount;
+      mean[2] /= gapCount;
     }
     const drift = this.cumulativeDrift;
     const bridged = stepCount > 0 ? 1 : slotGap;
@@ -494,7 +498,9 @@ export class Pipeline {
     const ringSize = this.ringSize;
     const trackStats = tracks.stats;
     const ring = tracks.ring;
+    const ringZ = tracks.ringZ;
     const ringSlot = tracks.ringSlot;
+    const capacity = tracks.capacity;
     const runStart = tracks.runStart;
     const trackGroup = tracks.group;
     const driftRing = this.driftRing;
@@ -513,9 +519,29 @@ export class Pipeline {
     let nonGaussianR4 = 0;
     let nonGaussianCount = 0;
     const hereSlot = slot % ringSize;
-    const drift0 = drift[0];
-    const drift1 = drift[1];
-    const drift2 = drift[2];
+    // Per lag, constant over the frame: the first ring cell of slot − n, and whether the drift ring
+    // holds that slot (lagUsable: 0 = no, 1 = yes). The per-frame drift correction of a lag-n
+    // displacement, D_n = X(slot) − X(slot − n), is also constant over the frame, so the corrected
+    // sums are not accumulated per particle: Σ(Δ − D)² = ΣΔ² − 2DΣΔ + N·D² is formed per group when
+    // the frame's scratch is folded (below), from the count, ΣΔ and ΣΔ² kept here.
+    const lagFrom = this.lagFromIndex;
+    const lagUsable = this.lagUsable;
+    let reach = 0; // lags with slot − n ≥ 0
+    for (let l = 0; l < lagCount; l++) {
+      const n = lags[l];
+      const from = slot - n;
+      if (from < 0) break;
+      let fromIndex = hereSlot - n;
+      if (fromIndex < 0) fromIndex += ringSize;
+      lagFrom[l] = fromIndex * capacity; // first cell of that slot's block
+      lagUsable[l] = from >= driftRunStart || driftRingSlot[fromIndex] === from ? 1 : 0;
+      const driftAt = fromIndex * 3;
+      this.lagDrift[l * 3] = drift[0] - driftRing[driftAt];
+      this.lagDrift[l * 3 + 1] = drift[1] - driftRing[driftAt + 1];
+      this.lagDrift[l * 3 + 2] = drift[2] - driftRing[driftAt + 2];
+      reach = l + 1;
+    }
+    const firstLagIsOne = lags[0] === 1;
     for (let p = 0; p < present; p++) {
       const index = this.trackIndex[p];
       const base = index * width;
@@ -525,11 +551,13 @@ export class Pipeline {
       const lastSlot = tracks.lastSlot[index];
       // One-slot step: CVE sums (raw and per-frame corrected).
       if (lastSlot === slot - 1) {
-        const lastRing = (index * ringSize + (lastSlot % ringSize)) * 3;
+        const lastCell = (lastSlot % ringSize) * capacity + index;
         const hasPair = trackStats[base + previousOffset + 2 * dims] === slot - 1;
+        let r2 = 0;
         for (let a = 0; a < dims; a++) {
-          const d = (a === 0 ? px : a === 1 ? py : pz) - ring[lastRing + a];
+          const d = a === 0 ? px - ring[2 * lastCell] : a === 1 ? py - ring[2 * lastCell + 1] : pz - ringZ[lastCell];
           const dc = d - mean[a];
+          r2 += dc * dc;
           const c = a * CVE_WIDTH;
           const previous = trackStats[base + previousOffset + a];
           const previousCorrected = trackStats[base + previousOffset + dims + a];
@@ -539,62 +567,53 @@ export class Pipeline {
           trackStats[base + previousOffset + dims + a] = dc;
         }
         trackStats[base + previousOffset + 2 * dims] = slot;
-      } else {
-        // the track's unbroken run of slots starts here
-        runStart[index] = slot;
-      }
-      // Lag sums over the ring (time-averaged MSD), raw and per-frame corrected, into the frame's
-      // scratch record of the track's group.
-      const group = trackGroup[index];
-      groupSeen[group] = 1;
-      const groupBase = group * width + lagBase;
-      const rowBase = index * ringSize;
-      const trackRunStart = runStart[index];
-      for (let l = 0; l < lagCount; l++) {
-        const n = lags[l];
-        const from = slot - n;
-        if (from < 0) break;
-        // (slot − n) mod ringSize without a division (n < ringSize)
-        let fromIndex = hereSlot - n;
-        if (fromIndex < 0) fromIndex += ringSize;
-        // Inside the track's unbroken run (and the drift ring's) the slot is known to be filled.
-        if (from < trackRunStart && ringSlot[rowBase + fromIndex] !== from) continue;
-        if (from < driftRunStart && driftRingSlot[fromIndex] !== from) continue;
-        const fromRing = (rowBase + fromIndex) * 3;
-        const at = groupBase + l * lagStride;
-        const driftAt = fromIndex * 3;
-        const dx = px - ring[fromRing];
-        const dxc = dx - (drift0 - driftRing[driftAt]);
-        const dy = py - ring[fromRing + 1];
-        const dyc = dy - (drift1 - driftRing[driftAt + 1]);
-        frameLag[at] += 1;
-        frameLag[at + 1] += dx;
-        frameLag[at + 2] += dx * dx;
-        frameLag[at + 3] += dxc * dxc;
-        frameLag[at + 4] += dy;
-        frameLag[at + 5] += dy * dy;
-        frameLag[at + 6] += dyc * dyc;
-        let r2 = dxc * dxc + dyc * dyc;
-        if (dims === 3) {
-          const dz = pz - ring[fromRing + 2];
-          const dzc = dz - (drift2 - driftRing[driftAt + 2]);
-          frameLag[at + 7] += dz;
-          frameLag[at + 8] += dz * dz;
-          frameLag[at + 9] += dzc * dzc;
-          r2 += dzc * dzc;
-        }
-        if (n === 1) {
+        // α2 at the first lag (the lag-1 displacement is this step; X(slot) − X(slot − 1) is m).
+        if (firstLagIsOne) {
           nonGaussianR2 += r2;
           nonGaussianR4 += r2 * r2;
           nonGaussianCount += 1;
         }
+      } else {
+        // the track's unbroken run of slots starts here
+        runStart[index] = slot;
+      }
+      // Lag sums over the ring (time-averaged MSD): count, ΣΔ and ΣΔ² per axis, into the frame's
+      // scratch record of the track's group.
+      const group = trackGroup[index];
+      groupSeen[group] = 1;
+      const groupBase = group * width + lagBase;
+      // Lags reaching back no further than the track's unbroken run find its ring cell filled.
+      const trackRunStart = runStart[index];
+      for (let l = 0; l < reach; l++) {
+        if (lagUsable[l] === 0) continue;
+        const cell = lagFrom[l] + index;
+        if (slot - lags[l] < trackRunStart && ringSlot[cell] !== slot - lags[l]) continue;
+        const at = groupBase + l * lagStride;
+        const dx = px - ring[2 * cell];
+        const dy = py - ring[2 * cell + 1];
+        frameLag[at] += 1;
+        frameLag[at + 1] += dx;
+        frameLag[at + 2] += dx * dx;
+        frameLag[at + 4] += dy;
+        frameLag[at + 5] += dy * dy;
+      }
+      if (dims === 3) {
+        for (let l = 0; l < reach; l++) {
+          if (lagUsable[l] === 0) continue;
+          const cell = lagFrom[l] + index;
+          if (slot - lags[l] < trackRunStart && ringSlot[cell] !== slot - lags[l]) continue;
+          const dz = pz - ringZ[cell];
+          const at = groupBase + l * lagStride;
+          frameLag[at + 7] += dz;
+          frameLag[at + 8] += dz * dz;
+        }
       }
       // Store the position in the ring and update the track's bookkeeping.
-      const here = (rowBase + hereSlot) * 3;
-      ring[here] = px;
-      ring[here + 1] = py;
-      ring[here + 2] = pz;
-      ringSlot[rowBase + hereSlot] = slot;
+      const here = hereSlot * capacity + index;
+      ring[2 * here] = px;
+      ring[2 * here + 1] = py;
+      if (dims === 3) ringZ[here] = pz;
+      ringSlot[here] = slot;
       tracks.touch(index, slot, frame.t);
       steps.trackLength[p] = tracks.length[index];
     }
@@ -618,6 +637,16 @@ export class Pipeline {
       if (groupSeen[g] === 0) continue;
       groupSeen[g] = 0;
       const from = g * width;
+      // The corrected sums per lag and axis: Σ(Δ − D)² = ΣΔ² − 2D·ΣΔ + N·D².
+      for (let l = 0; l < reach; l++) {
+        const at = from + lagBase + l * lagStride;
+        const count = frameLag[at];
+        if (count === 0) continue;
+        for (let a = 0; a < dims; a++) {
+          const d = this.lagDrift[l * 3 + a];
+          frameLag[at + 3 + 3 * a] = frameLag[at + 2 + 3 * a] - 2 * d * frameLag[at + 1 + 3 * a] + count * d * d;
+        }
+      }
       for (let i = lagBase; i < width; i++) {
         const v = frameLag[from + i];
         if (v === 0) continue;
@@ -661,6 +690,10 @@ export class Pipeline {
   private frameLag: Float64Array = new Float64Array(0);
   private groupSeen: Uint8Array = new Uint8Array(0);
   private driftRunStart = 0;
+  // Per-lag values constant over a frame (see processFrame step 4), allocated once per run.
+  private lagFromIndex: Int32Array = new Int32Array(0);
+  private lagUsable: Uint8Array = new Uint8Array(0);
+  private lagDrift: Float64Array = new Float64Array(0);
 
   private accumulateCommonMode(stepCount: number, mean: Float64Array): void {
     const steps = this.steps;

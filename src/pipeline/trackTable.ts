@@ -24,13 +24,17 @@ export interface EndedTrack {
 
 /**
  * The live tracks, in struct-of-arrays form: per track one statistics record (see statsLayout),
- * a ring of its last maxLag + 1 positions (3 values per slot, indexed by slot modulo the ring
- * size), and its bookkeeping. Storage grows by doubling and ended tracks' rows are reused.
+ * a ring of its last maxLag + 1 positions, and its bookkeeping. The rings are stored slot-major:
+ * cell (slot mod ringSize) × capacity + row, with x and y side by side in `ring` and z in `ringZ`
+ * (3-D only), so that one lag's reads over the tracks of a frame walk memory in order (rows are
+ * handed out in ascending order) instead of touching one cache line per track and lag; a grown
+ * table is laid out again (O(capacity × ringSize), at each doubling). Storage grows by doubling
+ * and ended tracks' rows are reused.
  * Ended tracks are folded into per-group totals (for the ensemble and the jackknife) and kept in
  * a bounded table (longest tracks win when it is full).
  *
- * Memory per live track: 8·(width + 3·ringSize) + 4·ringSize + ~80 bytes (bookkeeping, the dense
- * id table, the Map entry): ≈ 4.8 KiB at 2 axes, 16 lags, maxLag 128 (tools/bench/trackMemory.ts).
+ * Memory per live track: 8·(width + dims·ringSize) + 4·ringSize + ~80 bytes (bookkeeping, the dense
+ * id table, the Map entry): ≈ 3.6 KiB at 2 axes, 16 lags, maxLag 128 (tools/bench/trackMemory.ts).
  */
 export class TrackTable {
   readonly layout: StatsLayout;
@@ -39,7 +43,11 @@ export class TrackTable {
   readonly maxTable: number;
   capacity = 0;
   stats: Float64Array = new Float64Array(0);
+  /** x, y of each ring cell (see the class doc): offset 2·cell. */
   ring: Float64Array = new Float64Array(0);
+  /** z of each ring cell (3-D only, else empty): offset cell. */
+  ringZ: Float64Array = new Float64Array(0);
+  /** Slot whose position a ring cell holds (−1: none). */
   ringSlot: Int32Array = new Int32Array(0);
   lastSlot: Int32Array = new Int32Array(0);
   /** First slot of the track's current unbroken run of slots (its ring is filled from there on). */
@@ -123,7 +131,7 @@ export class TrackTable {
     this.stats.fill(0, index * width, (index + 1) * width);
     // no previous step yet
     this.stats[index * width + this.layout.previousOffset + 2 * this.layout.dims] = -2;
-    this.ringSlot.fill(-1, index * this.ringSize, (index + 1) * this.ringSize);
+    for (let cell = index; cell < this.ringSlot.length; cell += this.capacity) this.ringSlot[cell] = -1;
     this.lastSlot[index] = NO_SLOT;
     this.runStart[index] = NO_SLOT;
     this.mark[index] = NO_SLOT;
@@ -148,9 +156,9 @@ export class TrackTable {
     return index;
   }
 
-  /** Offset in `ring` of the position stored for `slot` of track row `index`. */
-  ringBase(index: number, slot: number, ringSize: number): number {
-    return (index * ringSize + (slot % ringSize)) * 3;
+  /** Ring cell of `slot` of track row `index`: x, y at 2·cell in `ring`, z at cell in `ringZ`. */
+  ringCell(index: number, slot: number): number {
+    return (slot % this.ringSize) * this.capacity + index;
   }
 
   /** Records that track row `index` has a position at `slot`, time `t`. */
@@ -227,7 +235,7 @@ export class TrackTable {
   private snapshot(index: number): EndedTrack {
     const width = this.layout.width;
     const dims = this.layout.dims;
-    const lastRing = this.ringBase(index, Math.max(0, this.lastSlot[index]), this.ringSize);
+    const lastRing = 2 * this.ringCell(index, Math.max(0, this.lastSlot[index]));
     return {
       id: this.id[index],
       length: this.length[index],
@@ -299,10 +307,15 @@ export class TrackTable {
     const ringSize = this.ringSize;
     const stats = new Float64Array(capacity * width);
     stats.set(this.stats);
-    const ring = new Float64Array(capacity * ringSize * 3);
-    ring.set(this.ring);
+    // Slot-major rings: each slot's block of `old` rows moves to its new place.
+    const ring = new Float64Array(capacity * ringSize * 2);
+    const ringZ = new Float64Array(this.layout.dims === 3 ? capacity * ringSize : 0);
     const ringSlot = new Int32Array(capacity * ringSize).fill(-1);
-    ringSlot.set(this.ringSlot);
+    for (let k = 0; k < ringSize && old > 0; k++) {
+      ring.set(this.ring.subarray(2 * k * old, 2 * (k + 1) * old), 2 * k * capacity);
+      if (ringZ.length > 0) ringZ.set(this.ringZ.subarray(k * old, (k + 1) * old), k * capacity);
+      ringSlot.set(this.ringSlot.subarray(k * old, (k + 1) * old), k * capacity);
+    }
     const lastSlot = new Int32Array(capacity);
     lastSlot.set(this.lastSlot);
     const runStart = new Int32Array(capacity);
@@ -321,6 +334,7 @@ export class TrackTable {
     group.set(this.group);
     this.stats = stats;
     this.ring = ring;
+    this.ringZ = ringZ;
     this.ringSlot = ringSlot;
     this.lastSlot = lastSlot;
     this.runStart = runStart;

@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import type { Frame } from '../../src/frame.js';
 import { Pipeline } from '../../src/pipeline/pipeline.js';
 import { brownianFrames } from '../helpers/brownianFrames.js';
+import { Random } from '../../src/stats/random.js';
 
 function frame(index: number, t: number, x: number[], y: number[], id?: number[]): Frame {
   return {
@@ -178,6 +179,115 @@ describe('Pipeline', () => {
 });
 
 describe('Pipeline rolling window and third axis', () => {
+  it.each([2, 3] as const)('matches a brute-force per-frame-corrected MSD at every lag, with gaps and tracks coming and going (%i-D)', (dims) => {
+    // The definition, computed directly (common practice, no source): m(t) is the mean one-slot
+    // step of the tracks present at t and t − 1, X(t) = Σ m, and the lag-n displacement of a track
+    // present at both ends is corrected by X(t) − X(t − n); MSD(n) = N/(N−1)·Σ_axes ⟨(Δ − ΔX)²⟩,
+    // with N/(N−1) = 1/(1 − frames/steps) over frames with two or more steps.
+    const random = new Random(41);
+    const slots = 300;
+    const particles = 12;
+    const pos: (number[] | null)[][] = [];
+    for (let s = 0; s < slots; s++) {
+      const row: (number[] | null)[] = [];
+      for (let p = 0; p < particles; p++) {
+        // each particle misses 10 % of the slots, and particles 0–3 are absent from slot 150 to 180
+        const absent = random.uniform() < 0.1 || (p < 4 && s >= 150 && s < 180);
+        row.push(absent ? null : Array.from({ length: dims }, (_, a) => p + a + 0.1 * Math.sin(s / 7 + p) + 0.05 * random.normal() + 0.01 * s));
+      }
+      pos.push(row);
+    }
+    const frames: Frame[] = [];
+    for (let s = 0; s < slots; s++) {
+      if (s === 200 || s === 201) continue; // two dropped frames
+      const present = pos[s].map((v, p) => (v ? p : -1)).filter((p) => p >= 0);
+      frames.push({
+        index: s,
+        t: s * 0.01,
+        count: present.length,
+        x: Float64Array.from(present, (p) => (pos[s][p] as number[])[0]),
+        y: Float64Array.from(present, (p) => (pos[s][p] as number[])[1]),
+        ...(dims === 3 ? { z: Float64Array.from(present, (p) => (pos[s][p] as number[])[2]) } : {}),
+        id: Uint32Array.from(present),
+      });
+    }
+    const seen = (s: number) => s !== 200 && s !== 201;
+    // Brute force. Track identity follows the pipeline's rule: after each received frame, a track
+    // not seen for more than maxGapFrames (default 2) slots ends; a lag is only taken within one
+    // track. A frame where nobody has a one-slot step (after the dropped frames) moves X by the
+    // mean per-slot displacement of the tracks that bridged the gap, times the slots bridged.
+    const X: number[][] = [];
+    const cumulative = new Array(dims).fill(0);
+    let frames2 = 0;
+    let steps2 = 0;
+    const trackOf: number[][] = []; // trackOf[s][p]: track number of particle p at slot s, or −1
+    const lastSeen = new Array(particles).fill(-100);
+    const track = new Array(particles).fill(-1);
+    let tracks = 0;
+    let lastReceived = -1;
+    for (let s = 0; s < slots; s++) {
+      trackOf.push(new Array(particles).fill(-1));
+      if (!seen(s)) { X.push(cumulative.slice()); continue; }
+      const mean = new Array(dims).fill(0);
+      const gapMean = new Array(dims).fill(0);
+      let n = 0;
+      let gaps = 0;
+      for (let p = 0; p < particles; p++) {
+        const v = pos[s][p];
+        if (!v) continue;
+        if (track[p] < 0) track[p] = tracks++;
+        trackOf[s][p] = track[p];
+        const last = lastSeen[p];
+        if (last >= 0 && trackOf[last][p] === track[p]) {
+          const before = pos[last][p] as number[];
+          if (last === s - 1) {
+            for (let a = 0; a < dims; a++) mean[a] += v[a] - before[a];
+            n++;
+          } else if (s - last <= 3) {
+            for (let a = 0; a < dims; a++) gapMean[a] += (v[a] - before[a]) / (s - last);
+            gaps++;
+          }
+        }
+        lastSeen[p] = s;
+      }
+      for (let p = 0; p < particles; p++) if (track[p] >= 0 && s - lastSeen[p] > 2) track[p] = -1;
+      if (n > 0) for (let a = 0; a < dims; a++) cumulative[a] += mean[a] / n;
+      else if (gaps > 0) for (let a = 0; a < dims; a++) cumulative[a] += (gapMean[a] / gaps) * (s - lastReceived);
+      if (n >= 2) { frames2++; steps2 += n; }
+      X.push(cumulative.slice());
+      lastReceived = s;
+    }
+    const pipeline = new Pipeline({ frameInterval: 0.01, exposure: 0, driftCorrection: 'per-frame' });
+    for (const f of frames) pipeline.push(f);
+    pipeline.finish();
+    const report = pipeline.report();
+    const factor = 1 / (1 - frames2 / steps2);
+    const lags = pipeline.lagFrames();
+    let compared = 0;
+    for (const point of report.msd) {
+      const n = Math.round(point.lag / 0.01);
+      expect(Array.from(lags)).toContain(n);
+      let sum = 0;
+      let count = 0;
+      for (let s = n; s < slots; s++) {
+        for (let p = 0; p < particles; p++) {
+          const now = pos[s][p];
+          const then = pos[s - n][p];
+          if (!now || !then || !seen(s) || !seen(s - n) || trackOf[s][p] < 0 || trackOf[s][p] !== trackOf[s - n][p]) continue;
+          for (let a = 0; a < dims; a++) {
+            const d = now[a] - then[a] - (X[s][a] - X[s - n][a]);
+            sum += d * d;
+          }
+          count++;
+        }
+      }
+      expect(point.count).toBe(count);
+      expect(point.value).toBeCloseTo((sum / count) * factor, 10);
+      compared++;
+    }
+    expect(compared).toBe(lags.length);
+  });
+
   it('gives the rolling-window MSD over the last window only', () => {
     // Free diffusion, no blur: MSD(τ) = 4Dτ in 2-D (estimators.md §1 with σ = 0, R = 0).
     const frames = brownianFrames({ seed: 21, particles: 60, frames: 1200, frameInterval: 0.05, diffusion: 0.3 });

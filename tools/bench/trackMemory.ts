@@ -11,7 +11,7 @@ import { benchFrames } from './benchFrames.js';
 /** Memory figures for `tracks` live tracks. */
 export interface TrackMemory {
   tracks: number;
-  /** Bytes per track from the layout: the position ring (3 × 8 B + 4 B slot per ring slot) and the rest. */
+  /** Bytes per track from the layout: the position ring (2 × 8 B + 4 B slot per ring slot in 2-D) and the rest. */
   ringBytes: number;
   otherBytes: number;
   /** Measured growth of array buffers + heap per live track, bytes (the table's capacity doubles: up to 2× the layout). */
@@ -39,7 +39,7 @@ export function trackMemory(tracks = 10_000): TrackMemory {
   const lags = msdLags(16, 128, 10);
   const ringSize = lags[lags.length - 1] + 1;
   const layout = statsLayout(2, lags.length);
-  const ringBytes = ringSize * (3 * 8 + 4);
+  const ringBytes = ringSize * (2 * 8 + 4); // x, y (z only in 3-D) and the slot
   // stats record, lastSlot, runStart, mark, length, id (4 B each), firstT, lastT (8 B), group (2 B),
   // dense id table (4 B), the Map entry of the live table (~40 B, heap)
   const otherBytes = layout.width * 8 + 5 * 4 + 2 * 8 + 2 + 4 + 40;

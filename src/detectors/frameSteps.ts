@@ -26,6 +26,12 @@ export interface FrameSteps {
   count: number;
   /** Track id of each present particle. */
   trackId: Uint32Array;
+  /**
+   * A row per present particle for per-track caches (see TrackCache): the pipeline's table row,
+   * small, stable while the track lives and reused after it ends. Only a hint: detectors check
+   * the id, so any non-negative numbering is correct (hand-made frames may pass the index).
+   */
+  trackRow: Int32Array;
   /** Positions of present particles, µm. */
   x: Float64Array;
   y: Float64Array;

@@ -309,6 +309,7 @@ export class Pipeline {
     this.frameCve = new Float64Array(this.layout.width);
     this.frameLag = new Float64Array(o.groups * this.layout.width);
     this.groupSeen = new Uint8Array(o.groups);
+    this.groupFull = new Int32Array(o.groups);
     this.lagFromIndex = new Int32Array(this.lags.length);
     this.lagUsable = new Uint8Array(this.lags.length);
     this.lagDrift = new Float64Array(this.lags.length * 3);
@@ -336,6 +337,7 @@ export class Pipeline {
       exposure: this.options.exposure,
       count: 0,
       trackId: new Uint32Array(capacity),
+      trackRow: new Int32Array(capacity),
       x: new Float64Array(capacity),
       y: new Float64Array(capacity),
       intensity: undefined,
@@ -411,6 +413,7 @@ export class Pipeline {
       tracks.mark[index] = slot;
       this.trackIndex[present] = index;
       steps.trackId[present] = ids[p];
+      steps.trackRow[present] = index;
       steps.x[present] = x;
       steps.y[present] = y;
       this.stepZ[present] = zp;
@@ -541,6 +544,10 @@ export class Pipeline {
       this.lagDrift[l * 3 + 2] = drift[2] - driftRing[driftAt + 2];
       reach = l + 1;
     }
+    let allUsable = true;
+    for (let l = 0; l < reach; l++) if (lagUsable[l] === 0) allUsable = false;
+    const longestReach = reach > 0 ? slot - lags[reach - 1] : slot;
+    const groupFull = this.groupFull;
     const firstLagIsOne = lags[0] === 1;
     for (let p = 0; p < present; p++) {
       const index = this.trackIndex[p];
@@ -584,18 +591,34 @@ export class Pipeline {
       const groupBase = group * width + lagBase;
       // Lags reaching back no further than the track's unbroken run find its ring cell filled.
       const trackRunStart = runStart[index];
-      for (let l = 0; l < reach; l++) {
-        if (lagUsable[l] === 0) continue;
-        const cell = lagFrom[l] + index;
-        if (slot - lags[l] < trackRunStart && ringSlot[cell] !== slot - lags[l]) continue;
-        const at = groupBase + l * lagStride;
-        const dx = px - ring[2 * cell];
-        const dy = py - ring[2 * cell + 1];
-        frameLag[at] += 1;
-        frameLag[at + 1] += dx;
-        frameLag[at + 2] += dx * dx;
-        frameLag[at + 4] += dy;
-        frameLag[at + 5] += dy * dy;
+      if (allUsable && longestReach >= trackRunStart) {
+        // The usual case: every reachable lag lies inside the track's unbroken run and the drift
+        // ring's, so no checks; the counts are added per group at the fold (groupFull).
+        groupFull[group]++;
+        for (let l = 0; l < reach; l++) {
+          const cell = lagFrom[l] + index;
+          const at = groupBase + l * lagStride;
+          const dx = px - ring[2 * cell];
+          const dy = py - ring[2 * cell + 1];
+          frameLag[at + 1] += dx;
+          frameLag[at + 2] += dx * dx;
+          frameLag[at + 4] += dy;
+          frameLag[at + 5] += dy * dy;
+        }
+      } else {
+        for (let l = 0; l < reach; l++) {
+          if (lagUsable[l] === 0) continue;
+          const cell = lagFrom[l] + index;
+          if (slot - lags[l] < trackRunStart && ringSlot[cell] !== slot - lags[l]) continue;
+          const at = groupBase + l * lagStride;
+          const dx = px - ring[2 * cell];
+          const dy = py - ring[2 * cell + 1];
+          frameLag[at] += 1;
+          frameLag[at + 1] += dx;
+          frameLag[at + 2] += dx * dx;
+          frameLag[at + 4] += dy;
+          frameLag[at + 5] += dy * dy;
+        }
       }
       if (dims === 3) {
         for (let l = 0; l < reach; l++) {
@@ -637,9 +660,13 @@ export class Pipeline {
       if (groupSeen[g] === 0) continue;
       groupSeen[g] = 0;
       const from = g * width;
-      // The corrected sums per lag and axis: Σ(Δ − D)² = ΣΔ² − 2D·ΣΔ + N·D².
+      // Counts of the tracks that took the unchecked path, then the corrected sums per lag and
+      // axis: Σ(Δ − D)² = ΣΔ² − 2D·ΣΔ + N·D².
+      const full = groupFull[g];
+      groupFull[g] = 0;
       for (let l = 0; l < reach; l++) {
         const at = from + lagBase + l * lagStride;
+        frameLag[at] += full;
         const count = frameLag[at];
         if (count === 0) continue;
         for (let a = 0; a < dims; a++) {
@@ -689,6 +716,8 @@ export class Pipeline {
   private frameCve: Float64Array = new Float64Array(0);
   private frameLag: Float64Array = new Float64Array(0);
   private groupSeen: Uint8Array = new Uint8Array(0);
+  // Tracks per group that took the unchecked lag path this frame (their counts, added at the fold).
+  private groupFull: Int32Array = new Int32Array(0);
   private driftRunStart = 0;
   // Per-lag values constant over a frame (see processFrame step 4), allocated once per run.
   private lagFromIndex: Int32Array = new Int32Array(0);

@@ -5,6 +5,7 @@ import type { Detector } from '../detector.js';
 import { PointGrid } from './pointGrid.js';
 import type { DetectorContext } from '../detectorContext.js';
 import type { FrameSteps } from '../frameSteps.js';
+import { TrackCache } from '../trackCache.js';
 import { persistenceFrames } from './chancePersistence.js';
 import { clarkEvans, NearestNeighbourScratch, type ClarkEvansResult } from './clarkEvans.js';
 import { ClosePairEpisodes } from './closePairEpisodes.js';
@@ -191,7 +192,10 @@ function fmt(value: number, digits = 2): string {
 export class ClumpingDetector implements Detector<ClumpingSummary> {
   readonly name = 'clumping';
   private readonly options: ClumpingOptions;
-  private readonly tracks = new Map<number, TrackRecord>();
+  private readonly tracks = new TrackCache<TrackRecord>();
+  // The record of each particle of the frame being pushed (reused; entries past the frame's count
+  // are stale and never read).
+  private readonly recordOf: TrackRecord[] = [];
   private readonly episodes = new ClosePairEpisodes();
   private readonly scratch = new NearestNeighbourScratch();
   private pairKeys = new Float64Array(64);
@@ -289,13 +293,16 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     const intensity = steps.intensity;
 
     // Per-track records: position, intensity history (and its frame-to-frame noise at baseline).
+    // Each particle's record is kept for the steps below (one Map probe per particle).
+    const recordOf = this.recordOf;
     for (let i = 0; i < n; i++) {
       const id = steps.trackId[i];
-      let record = this.tracks.get(id);
+      let record = this.tracks.find(id, steps.trackRow[i]);
       if (!record) {
         record = new TrackRecord(id, slot);
-        this.tracks.set(id, record);
+        this.tracks.set(id, steps.trackRow[i], record);
       }
+      recordOf[i] = record;
       record.lastSlot = slot;
       record.lastX = steps.x[i];
       record.lastY = steps.y[i];
@@ -322,8 +329,7 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
       const dx = steps.dx[s];
       const dy = steps.dy[s];
       if (!Number.isFinite(dx) || !Number.isFinite(dy)) continue;
-      const record = this.tracks.get(steps.trackId[steps.stepParticle[s]]);
-      if (!record) continue;
+      const record = recordOf[steps.stepParticle[s]];
       if (!this.baselineDone) {
         this.pooledSquares += dx * dx + dy * dy;
         this.pooledSquareCount += 2;
@@ -423,7 +429,7 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     this.framesInBlock = 0;
     this.blockIndex++;
     // Housekeeping: forget tracks not seen for a long time (ended without notice).
-    for (const [id, record] of this.tracks) if (slot - record.lastSlot > 4 * this.blockFrames) this.tracks.delete(id);
+    for (const [id, record] of this.tracks.entries()) if (slot - record.lastSlot > 4 * this.blockFrames) this.tracks.delete(id);
     if (!this.baselineDone) {
       if (this.blockIndex >= this.options.baselineBlocks) this.finishBaseline(context);
       return [];
@@ -641,7 +647,7 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     let heldPairs = 0;
     for (const episode of this.episodes.values()) if (episode.frames >= this.persistence) heldPairs++;
     let mergedPresent = 0;
-    for (let i = 0; i < steps.count; i++) if (this.tracks.get(steps.trackId[i])?.merged) mergedPresent++;
+    for (let i = 0; i < steps.count; i++) if (this.tracks.find(steps.trackId[i], steps.trackRow[i])?.merged) mergedPresent++;
     // A merge stays in force while its brightened track is in view, a persistent pair while it is
     // held (once something was raised: the cluster is still there); every warn onset still needs
     // a fresh significant look, so the Bonferroni bound holds.

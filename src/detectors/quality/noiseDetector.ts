@@ -2,6 +2,7 @@ import type { AlertLevel, Condition } from '../../alerts/condition.js';
 import type { Detector } from '../detector.js';
 import type { DetectorContext } from '../detectorContext.js';
 import type { FrameSteps } from '../frameSteps.js';
+import { TrackCache } from '../trackCache.js';
 import { normalQuantile } from '../../stats/quantiles.js';
 import { siegmundThreshold } from '../drift/siegmundThreshold.js';
 import { PageCusum } from '../drift/pageCusum.js';
@@ -98,7 +99,7 @@ const DEFAULTS: NoiseOptions = {
 export class NoiseDetector implements Detector<NoiseSummary> {
   readonly name = 'noise';
   private readonly options: NoiseOptions;
-  private readonly previous = new Map<number, { slot: number; dx: number; dy: number }>();
+  private readonly previous = new TrackCache<{ slot: number; dx: number; dy: number }>();
   // Per batch: Σ squares, count of squares, Σ products, count of products (both axes pooled).
   private readonly squares: Float64Array;
   private readonly squareCount: Float64Array;
@@ -159,10 +160,11 @@ export class NoiseDetector implements Detector<NoiseSummary> {
       const a = steps.dx[i];
       const b = steps.dy[i];
       if (!Number.isFinite(a) || !Number.isFinite(b)) continue;
-      const id = steps.trackId[steps.stepParticle[i]];
+      const particle = steps.stepParticle[i];
+      const id = steps.trackId[particle];
       this.squares[batch] += a * a + b * b;
       this.squareCount[batch] += 2;
-      const before = this.previous.get(id);
+      const before = this.previous.find(id, steps.trackRow[particle]);
       if (before !== undefined) {
         if (before.slot === slot - 1) {
           this.products[batch] += a * before.dx + b * before.dy;
@@ -172,7 +174,7 @@ export class NoiseDetector implements Detector<NoiseSummary> {
         before.dx = a;
         before.dy = b;
       } else {
-        this.previous.set(id, { slot, dx: a, dy: b });
+        this.previous.set(id, steps.trackRow[particle], { slot, dx: a, dy: b });
       }
     }
     for (let i = 0; i < steps.endedCount; i++) {

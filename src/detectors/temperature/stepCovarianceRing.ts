@@ -1,4 +1,5 @@
 import type { FrameSteps } from '../frameSteps.js';
+import { TrackCache } from '../trackCache.js';
 
 /** Sums over a run of frames, as returned by {@link StepCovarianceRing.sumSince}. */
 export interface StepCovarianceSums {
@@ -53,7 +54,7 @@ export class StepCovarianceRing {
   private readonly prodCount: Float64Array;
   private readonly statistic: Float64Array;
   private readonly shape: Float64Array;
-  private readonly trackIndex: Map<number, number>;
+  private readonly trackIndex: TrackCache<number>;
   private lastDx: Float64Array;
   private lastDy: Float64Array;
   private lastSlot: Float64Array;
@@ -73,7 +74,7 @@ export class StepCovarianceRing {
     this.prodCount = new Float64Array(capacity);
     this.statistic = new Float64Array(capacity);
     this.shape = new Float64Array(capacity);
-    this.trackIndex = new Map();
+    this.trackIndex = new TrackCache();
     this.lastDx = new Float64Array(256);
     this.lastDy = new Float64Array(256);
     this.lastSlot = new Float64Array(256);
@@ -113,11 +114,12 @@ export class StepCovarianceRing {
         const squared = rx * rx + ry * ry;
         residualSum += squared;
         sumSquares += squared * factor;
-        const id = steps.trackId[steps.stepParticle[k]];
-        let index = this.trackIndex.get(id);
+        const particle = steps.stepParticle[k];
+        const id = steps.trackId[particle];
+        let index = this.trackIndex.find(id, steps.trackRow[particle]);
         if (index === undefined) {
           index = this.allocate();
-          this.trackIndex.set(id, index);
+          this.trackIndex.set(id, steps.trackRow[particle], index);
         } else if (this.lastSlot[index] === steps.slot - 1) {
           sumProducts += (this.lastDx[index] * rx + this.lastDy[index] * ry) * factor;
           pairs++;

@@ -1,4 +1,5 @@
 import type { FrameSteps } from '../frameSteps.js';
+import { TrackCache } from '../trackCache.js';
 
 /**
  * Gathers the one-frame steps of every particle present throughout a segment of `length`
@@ -35,7 +36,7 @@ export class SegmentCollector {
   completedSegments: number;
   /** Slot of the first step of the current segment. */
   segmentStartSlot: number;
-  private readonly rowOf: Map<number, number>;
+  private readonly rowOf: TrackCache<number>;
   private rowFilled: Int32Array;
   private rows: number;
   private position: number;
@@ -51,7 +52,7 @@ export class SegmentCollector {
     this.stepsY = new Float64Array(capacity * length);
     this.rowTrackId = new Uint32Array(capacity);
     this.rowFilled = new Int32Array(capacity);
-    this.rowOf = new Map();
+    this.rowOf = new TrackCache();
     this.rows = 0;
     this.position = 0;
     this.completeRows = 0;
@@ -84,11 +85,12 @@ export class SegmentCollector {
       this.segmentStartSlot = steps.slot;
       // Rows are assigned only at the first step: a particle arriving later cannot complete.
       for (let j = 0; j < steps.stepCount; j++) {
-        const id = steps.trackId[steps.stepParticle[j]];
+        const particle = steps.stepParticle[j];
+        const id = steps.trackId[particle];
         if (this.rowOf.has(id)) continue; // duplicate id in one frame: keep the first
         this.ensureCapacity(this.rows + 1);
         const row = this.rows++;
-        this.rowOf.set(id, row);
+        this.rowOf.set(id, steps.trackRow[particle], row);
         this.rowTrackId[row] = id;
         this.stepsX[row * L] = steps.dx[j];
         this.stepsY[row * L] = steps.dy[j];
@@ -96,7 +98,8 @@ export class SegmentCollector {
       }
     } else {
       for (let j = 0; j < steps.stepCount; j++) {
-        const row = this.rowOf.get(steps.trackId[steps.stepParticle[j]]);
+        const particle = steps.stepParticle[j];
+        const row = this.rowOf.find(steps.trackId[particle], steps.trackRow[particle]);
         if (row === undefined || this.rowFilled[row] !== t) continue;
         const dx = steps.dx[j];
         const dy = steps.dy[j];

@@ -117,7 +117,7 @@ export class ClumpingSteps {
     }
     this.steps = {
       t: 0, frameIndex: 0, slot: 0, slotGap: 1, frameInterval: options.frameInterval, exposure: 0, count: 0,
-      trackId: new Uint32Array(n), x: new Float64Array(n), y: new Float64Array(n),
+      trackId: new Uint32Array(n), trackRow: new Int32Array(n), x: new Float64Array(n), y: new Float64Array(n),
       intensity: options.intensityNoise === null ? undefined : new Float64Array(n),
       trackLength: new Uint32Array(n), stepCount: 0, stepParticle: new Int32Array(n),
       dx: new Float64Array(n), dy: new Float64Array(n), endedCount: 0, endedTrackId: new Uint32Array(2 * n),
@@ -291,6 +291,7 @@ export class ClumpingSteps {
       const ox = x + sigma * this.random.normal();
       const oy = y + sigma * this.random.normal();
       st.trackId[count] = this.id[i];
+      st.trackRow[count] = i;
       st.x[count] = ox; st.y[count] = oy;
       if (st.intensity) st.intensity[count] = intensity * (noise > 0 ? Math.exp(noise * this.random.normal()) : 1);
       this.length[i]++;

@@ -90,7 +90,7 @@ export class SyntheticSteps {
     this.frame = {
       t: 0, frameIndex: 0, slot: 0, slotGap: 1,
       frameInterval: options.frameInterval, exposure: options.frameInterval,
-      count: 0, trackId: new Uint32Array(n), x: bigger(n), y: bigger(n), intensity: undefined,
+      count: 0, trackId: new Uint32Array(n), trackRow: Int32Array.from({ length: n }, (_, i) => i), x: bigger(n), y: bigger(n), intensity: undefined,
       trackLength: new Uint32Array(n), stepCount: 0, stepParticle: new Int32Array(n),
       dx: bigger(n), dy: bigger(n), endedCount: 0, endedTrackId: new Uint32Array(n),
       endedLength: new Uint32Array(n), endedX: bigger(n), endedY: bigger(n),

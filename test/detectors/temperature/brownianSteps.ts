@@ -72,7 +72,7 @@ export class BrownianSteps {
     this.axisSteps = 0;
     this.steps = {
       t: 0, frameIndex: 0, slot: 0, slotGap: 1, frameInterval: options.frameInterval, exposure: 0, count: n,
-      trackId: new Uint32Array(n), x: new Float64Array(n), y: new Float64Array(n), intensity: undefined,
+      trackId: new Uint32Array(n), trackRow: Int32Array.from({ length: n }, (_, i) => i), x: new Float64Array(n), y: new Float64Array(n), intensity: undefined,
       trackLength: new Uint32Array(n), stepCount: 0, stepParticle: new Int32Array(n),
       dx: new Float64Array(n), dy: new Float64Array(n), endedCount: 0, endedTrackId: new Uint32Array(n),
       endedLength: new Uint32Array(n), endedX: new Float64Array(n), endedY: new Float64Array(n),

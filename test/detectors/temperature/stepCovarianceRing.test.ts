@@ -8,7 +8,7 @@ function frame(slot: number, stepsX: number[], stepsY: number[] = stepsX): Frame
   const n = stepsX.length;
   return {
     t: slot, frameIndex: slot, slot, slotGap: 1, frameInterval: 1, exposure: 0, count: n,
-    trackId: Uint32Array.from({ length: n }, (_, i) => i + 1), x: new Float64Array(n), y: new Float64Array(n),
+    trackId: Uint32Array.from({ length: n }, (_, i) => i + 1), trackRow: Int32Array.from({ length: n }, (_, i) => i), x: new Float64Array(n), y: new Float64Array(n),
     intensity: undefined, trackLength: new Uint32Array(n), stepCount: n,
     stepParticle: Int32Array.from({ length: n }, (_, i) => i), dx: Float64Array.from(stepsX), dy: Float64Array.from(stepsY),
     endedCount: 0, endedTrackId: new Uint32Array(0), endedLength: new Uint32Array(0), endedX: new Float64Array(0),

@@ -121,6 +121,7 @@ export class SimulatedStream {
       exposure: s.exposure,
       count: n,
       trackId,
+      trackRow: Int32Array.from({ length: n }, (_, i) => i),
       x: new Float64Array(n),
       y: new Float64Array(n),
       intensity: undefined,

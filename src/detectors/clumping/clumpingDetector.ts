@@ -304,8 +304,6 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
       }
       recordOf[i] = record;
       record.lastSlot = slot;
-      record.lastX = steps.x[i];
-      record.lastY = steps.y[i];
       if (intensity) {
         const value = intensity[i];
         if (Number.isFinite(value) && value > 0) {

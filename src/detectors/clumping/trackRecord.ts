@@ -23,9 +23,6 @@ export class TrackRecord {
   readonly firstSlot: number;
   /** Last slot the track was seen in. */
   lastSlot: number;
-  /** Last position, µm. */
-  lastX = 0;
-  lastY = 0;
   /** Slot of the last step (−1: none), and that step, µm. */
   lastStepSlot = -1;
   lastDx = 0;

@@ -98,8 +98,17 @@ describe('gammaCusumThreshold', () => {
     // internal consistency of the secant search (Brook & Evans 1972 ARL on both sides)
     for (const [arl0, q, shape] of [[1e3, 1.03, 49], [1e6, 1.03, 99], [5e4, 1 / 1.03, 20]] as const) {
       const h = gammaCusumThreshold({ arl0Frames: arl0, ratio: q, shape });
-      expect(gammaCusumArl({ threshold: h, ratio: q, shape }) / arl0).toBeCloseTo(1, 4);
+      expect(gammaCusumArl({ threshold: h, ratio: q, shape, states: 50 }) / arl0).toBeCloseTo(1, 4);
       expect(h).toBeLessThan(Math.log(arl0)); // Lorden (1971): e^h ≤ ARL0
+    }
+  });
+
+  it('gammaCusumThreshold with its default 50 states gives the wanted ARL0 of a 200-state chain within 5·10⁻⁴', () => {
+    // Brook & Evans (1972) discretisation converges as 1/m² (Richardson-extrapolated here): the
+    // coarser default must not move the designed ARL0 by more than a small fraction.
+    for (const [arl0, q, shape] of [[9.6e3, 1.05, 100], [1e5, 1.03, 500], [5e4, 1 / 1.03, 2000], [2e4, 1.1, 40]] as const) {
+      const h = gammaCusumThreshold({ arl0Frames: arl0, ratio: q, shape });
+      expect(Math.abs(gammaCusumArl({ threshold: h, ratio: q, shape, states: 200 }) / arl0 - 1)).toBeLessThan(5e-4);
     }
   });
 

@@ -26,6 +26,9 @@ export class PointGrid {
   cellStart: Int32Array = new Int32Array(0);
   /** Point indices sorted by cell. */
   order: Int32Array = new Int32Array(0);
+  /** The points' coordinates in the same order as `order` (sequential reads in the pair sweep). */
+  sortedX: Float64Array = new Float64Array(0);
+  sortedY: Float64Array = new Float64Array(0);
   private cellOf: Int32Array = new Int32Array(0);
 
   /**
@@ -67,6 +70,8 @@ export class PointGrid {
     if (this.order.length < count) {
       this.order = new Int32Array(2 * count);
       this.cellOf = new Int32Array(2 * count);
+      this.sortedX = new Float64Array(2 * count);
+      this.sortedY = new Float64Array(2 * count);
     }
     const start = this.cellStart;
     const cellOf = this.cellOf;
@@ -76,19 +81,21 @@ export class PointGrid {
       const r = Math.min(rows - 1, Math.floor((y[i] - yMin) / size));
       const k = r * columns + c;
       cellOf[i] = k;
-      start[k + 1]++;
-    }
-    for (let k = 0; k < cells; k++) start[k + 1] += start[k];
-    // Counting sort, stable: ascending point index within a cell. cellOf becomes the write cursor.
-    const order = this.order;
-    for (let i = 0; i < count; i++) {
-      const k = cellOf[i];
-      order[start[k]] = i;
       start[k]++;
     }
-    // undo the cursor shift: start[k] now holds the end of cell k
-    for (let k = cells; k > 0; k--) start[k] = start[k - 1];
-    start[0] = 0;
+    // Inclusive prefix sums: start[k] is the end of cell k; filling from the last point down moves
+    // each cursor back to its cell's beginning (counting sort, stable: ascending index in a cell).
+    for (let k = 1; k < cells; k++) start[k] += start[k - 1];
+    start[cells] = count;
+    const order = this.order;
+    const sortedX = this.sortedX;
+    const sortedY = this.sortedY;
+    for (let i = count - 1; i >= 0; i--) {
+      const at = --start[cellOf[i]];
+      order[at] = i;
+      sortedX[at] = x[i];
+      sortedY[at] = y[i];
+    }
   }
 
   /**
@@ -141,50 +148,54 @@ export class PointGrid {
    * {@link PointGrid.pairsWithin}), in ascending i then j, written to `out` as keys i·count + j;
    * returns how many, or −(how many) when `out` is too short (grow it and ask again). Requires
    * `r` ≤ cellSize. Each pair of neighbouring cells is visited once (a cell with itself and its 4
-   * forward neighbours), so this does about half the work of `pairsWithin` on every point.
+   * forward neighbours), so this does about half the work of `pairsWithin` on every point. `x`, `y`
+   * must be the points given to `build`: the sweep reads build's copies in cell order.
    * O(count + pairs · log pairs).
    * @example
    * grid.build(x, y, 3, 1);
    * grid.closePairs(Float64Array.of(0, 0.5, 9), Float64Array.of(0, 0, 9), 3, 1, keys) // → 1 (keys[0] = 0·3 + 1)
    */
   closePairs(x: ArrayLike<number>, y: ArrayLike<number>, count: number, r: number, out: Float64Array): number {
+    void x; // the copies made by build are read instead (sequentially)
+    void y;
     const columns = this.columns;
     const rows = this.rows;
     const start = this.cellStart;
     const order = this.order;
+    const sx = this.sortedX;
+    const sy = this.sortedY;
     const r2 = r * r;
     let found = 0;
     for (let row = 0; row < rows; row++) {
+      const nextRow = row + 1 < rows ? (row + 1) * columns : -1;
       for (let column = 0; column < columns; column++) {
         const k = row * columns + column;
         const end = start[k + 1];
+        if (start[k] === end) continue;
+        // Forward neighbours as two runs of `order`: the rest of this cell with the next cell of
+        // the row, and the three cells below (one run: cells of a row are contiguous).
+        const sameEnd = column + 1 < columns ? start[k + 2] : end;
+        const belowStart = nextRow >= 0 ? start[nextRow + (column > 0 ? column - 1 : 0)] : 0;
+        const belowEnd = nextRow >= 0 ? start[nextRow + (column + 1 < columns ? column + 1 : column) + 1] : 0;
         for (let s = start[k]; s < end; s++) {
           const p = order[s];
-          const px = x[p];
-          const py = y[p];
-          // the rest of its own cell
-          for (let t = s + 1; t < end; t++) {
-            const q = order[t];
-            const dx = x[q] - px;
-            const dy = y[q] - py;
+          const px = sx[s];
+          const py = sy[s];
+          for (let t = s + 1; t < sameEnd; t++) {
+            const dx = sx[t] - px;
+            const dy = sy[t] - py;
             if (dx * dx + dy * dy > r2) continue;
+            const q = order[t];
             if (found < out.length) out[found] = p < q ? p * count + q : q * count + p;
             found++;
           }
-          // the forward neighbours: (row, column + 1) and the three cells of the next row
-          for (let n = 0; n < 4; n++) {
-            const nr = n === 0 ? row : row + 1;
-            const nc = n === 0 ? column + 1 : column + n - 2;
-            if (nr >= rows || nc < 0 || nc >= columns) continue;
-            const m = nr * columns + nc;
-            for (let t = start[m]; t < start[m + 1]; t++) {
-              const q = order[t];
-              const dx = x[q] - px;
-              const dy = y[q] - py;
-              if (dx * dx + dy * dy > r2) continue;
-              if (found < out.length) out[found] = p < q ? p * count + q : q * count + p;
-              found++;
-            }
+          for (let t = belowStart; t < belowEnd; t++) {
+            const dx = sx[t] - px;
+            const dy = sy[t] - py;
+            if (dx * dx + dy * dy > r2) continue;
+            const q = order[t];
+            if (found < out.length) out[found] = p < q ? p * count + q : q * count + p;
+            found++;
           }
         }
       }

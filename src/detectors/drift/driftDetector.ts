@@ -259,10 +259,11 @@ export class DriftDetector implements Detector<DriftSummary> {
     }
     const s2x = ssx / (n - 1);
     const s2y = ssy / (n - 1);
+    // The medians are looked for first within 4 standard errors of the mean (exact either way).
     this.bufMed.set(dx.subarray(0, n));
-    const medX = medianInPlace(this.bufMed, n);
+    const medX = medianInPlace(this.bufMed, n, mx, 4 * Math.sqrt(s2x / n));
     this.bufMed.set(dy.subarray(0, n));
-    const medY = medianInPlace(this.bufMed, n);
+    const medY = medianInPlace(this.bufMed, n, my, 4 * Math.sqrt(s2y / n));
     const vx = s2x / n, vy = s2y / n;
 
     // Path and whole-run sums (jumps included: they are real common-mode motion).

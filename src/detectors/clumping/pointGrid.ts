@@ -181,21 +181,16 @@ export class PointGrid {
           const p = order[s];
           const px = sx[s];
           const py = sy[s];
-          for (let t = s + 1; t < sameEnd; t++) {
-            const dx = sx[t] - px;
-            const dy = sy[t] - py;
-            if (dx * dx + dy * dy > r2) continue;
-            const q = order[t];
-            if (found < out.length) out[found] = p < q ? p * count + q : q * count + p;
-            found++;
-          }
-          for (let t = belowStart; t < belowEnd; t++) {
-            const dx = sx[t] - px;
-            const dy = sy[t] - py;
-            if (dx * dx + dy * dy > r2) continue;
-            const q = order[t];
-            if (found < out.length) out[found] = p < q ? p * count + q : q * count + p;
-            found++;
+          for (let run = 0; run < 2; run++) {
+            const to = run === 0 ? sameEnd : belowEnd;
+            for (let t = run === 0 ? s + 1 : belowStart; t < to; t++) {
+              const dx = sx[t] - px;
+              const dy = sy[t] - py;
+              if (dx * dx + dy * dy > r2) continue;
+              const q = order[t];
+              if (found < out.length) out[found] = p < q ? p * count + q : q * count + p;
+              found++;
+            }
           }
         }
       }

@@ -10,14 +10,19 @@ type Field = 'x' | 'y' | 'z' | 'intensity' | 'id';
 /**
  * The reused columnar buffers one rig connection decodes its frames into: Float64Arrays for
  * coordinates and intensity, a Uint32Array for ids, allocated once and grown by doubling, so a
- * frame costs no allocation in the steady state. A MessagePack `bin` (a Buffer view at any byte
- * offset, so not aligned for a Float64Array) is copied with one memcpy into the aligned buffer and
- * then checked in one pass (DataView little-endian reads on a big-endian host); a plain
+ * frame costs no allocation in the steady state. A MessagePack `bin` is a Buffer view into the
+ * message at whatever byte offset the payload fell: when that offset is a multiple of the element
+ * size (8 for float64 at pixel size 1, 4 for ids) the frame takes a typed-array view of the
+ * payload itself, with no copy (zero-copy; still checked in one pass); otherwise it is copied with
+ * one memcpy into the aligned buffer and then checked (DataView little-endian reads on a
+ * big-endian host). A plain
  * array (or a typed array that a library's extension type decoded to) is checked element by
  * element. Every value must be finite (ids: integers in
  * [0, 2³² − 1]).
  *
- * The returned frame is a view into these buffers: valid until the next `decode`.
+ * The returned frame is a view into these buffers or into the message: valid until the next
+ * `decode`, and only as long as the message buffer is not reused (ws hands out a fresh one per
+ * message; every consumer of a frame copies what it keeps).
  *
  * Complexity: O(count) per frame.
  *
@@ -55,21 +60,12 @@ export class FrameBuffers {
       }
     }
     this.ensure(count);
-    this.copyFloats(message.x, count, floatBits, pixelSize, this.x);
-    this.copyFloats(message.y, count, floatBits, pixelSize, this.y);
-    const frame: Frame = { index, t, count, x: this.x, y: this.y };
-    if (message.z != null) {
-      this.copyFloats(message.z, count, floatBits, pixelSize, this.z);
-      frame.z = this.z;
-    }
-    if (message.intensity != null) {
-      this.copyFloats(message.intensity, count, floatBits, 1, this.intensity);
-      frame.intensity = this.intensity;
-    }
-    if (message.id != null) {
-      this.copyIds(message.id, count);
-      frame.id = this.id;
-    }
+    const x = this.copyFloats(message.x, count, floatBits, pixelSize, this.x);
+    const y = this.copyFloats(message.y, count, floatBits, pixelSize, this.y);
+    const frame: Frame = { index, t, count, x, y };
+    if (message.z != null) frame.z = this.copyFloats(message.z, count, floatBits, pixelSize, this.z);
+    if (message.intensity != null) frame.intensity = this.copyFloats(message.intensity, count, floatBits, 1, this.intensity);
+    if (message.id != null) frame.id = this.copyIds(message.id, count);
     return frame;
   }
 
@@ -99,7 +95,8 @@ export class FrameBuffers {
     this.id = new Uint32Array(capacity);
   }
 
-  private copyFloats(value: unknown, count: number, floatBits: 32 | 64, scale: number, out: Float64Array): void {
+  /** Checks one float array into `out`, or returns a checked view of an aligned bin; returns the array holding the values. */
+  private copyFloats(value: unknown, count: number, floatBits: 32 | 64, scale: number, out: Float64Array): Float64Array {
     if (Array.isArray(value) || value instanceof Float64Array || value instanceof Float32Array || value instanceof Uint32Array) {
       for (let i = 0; i < count; i++) {
         const v = value[i];
@@ -107,12 +104,20 @@ export class FrameBuffers {
         if (!Number.isFinite(v)) throw new ServerError('JOSTLE_E_NOT_FINITE', 'frame holds a value that is not finite');
         out[i] = v * scale;
       }
-      return;
+      return out;
     }
     const bytes = value as Uint8Array;
+    if (LITTLE_ENDIAN && floatBits === 64 && scale === 1 && (bytes.byteOffset & 7) === 0) {
+      // Zero-copy: the payload is aligned for a Float64Array; view it in place and check it.
+      const view = new Float64Array(bytes.buffer, bytes.byteOffset, count);
+      for (let i = 0; i < count; i++) {
+        if (view[i] - view[i] !== 0) throw new ServerError('JOSTLE_E_NOT_FINITE', 'frame holds a value that is not finite');
+      }
+      return view;
+    }
     if (LITTLE_ENDIAN) {
-      // Fast path: one memcpy of the bin into aligned memory (a msgpackr bin is a view at any byte
-      // offset, so it cannot be viewed as a Float64Array in place), then one validating pass.
+      // Unaligned (or scaled, or float32): one memcpy of the bin into aligned memory, then one
+      // validating pass.
       if (floatBits === 64) {
         new Uint8Array(out.buffer, out.byteOffset, count * 8).set(bytes.subarray(0, count * 8));
         if (scale === 1) {
@@ -127,7 +132,7 @@ export class FrameBuffers {
             out[i] = v * scale;
           }
         }
-        return;
+        return out;
       }
       const narrow = this.float32Scratch(count);
       new Uint8Array(narrow.buffer, 0, count * 4).set(bytes.subarray(0, count * 4));
@@ -136,7 +141,7 @@ export class FrameBuffers {
         if (v - v !== 0) throw new ServerError('JOSTLE_E_NOT_FINITE', 'frame holds a value that is not finite');
         out[i] = v * scale;
       }
-      return;
+      return out;
     }
     // A DataView reads at any byte offset: msgpackr's bins are views into the message buffer.
     const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
@@ -145,6 +150,7 @@ export class FrameBuffers {
       if (!Number.isFinite(v)) throw new ServerError('JOSTLE_E_NOT_FINITE', 'frame holds a value that is not finite');
       out[i] = v * scale;
     }
+    return out;
   }
 
   private narrow = new Float32Array(0);
@@ -154,7 +160,8 @@ export class FrameBuffers {
     return this.narrow;
   }
 
-  private copyIds(value: unknown, count: number): void {
+  /** Checks the ids into the id buffer, or returns a view of an aligned bin (every uint32 is valid). */
+  private copyIds(value: unknown, count: number): Uint32Array {
     const out = this.id;
     if (Array.isArray(value) || value instanceof Float64Array || value instanceof Float32Array || value instanceof Uint32Array) {
       for (let i = 0; i < count; i++) {
@@ -164,15 +171,17 @@ export class FrameBuffers {
         }
         out[i] = v;
       }
-      return;
+      return out;
     }
     const bytes = value as Uint8Array;
     if (LITTLE_ENDIAN) {
-      // every uint32 is a valid id: one memcpy into the aligned buffer
+      // every uint32 is a valid id: a view when aligned (zero-copy), else one memcpy
+      if ((bytes.byteOffset & 3) === 0) return new Uint32Array(bytes.buffer, bytes.byteOffset, count);
       new Uint8Array(out.buffer, out.byteOffset, count * 4).set(bytes.subarray(0, count * 4));
-      return;
+      return out;
     }
     const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
     for (let i = 0; i < count; i++) out[i] = view.getUint32(i * 4, true);
+    return out;
   }
 }

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { parseDecimal } from '../../tools/io/parseDecimal.js';
+import { decimalEnd, parseDecimal, parseDecimalPrefix } from '../../tools/io/parseDecimal.js';
 import { parseDecimalText } from '../../tools/io/parseDecimalText.js';
 
 const parse = (text: string): number => {
@@ -79,5 +79,35 @@ describe('parseDecimalText', () => {
     // common practice, no source: CSV readers trim blanks around unquoted numbers.
     expect(parseDecimalText('  21.5\t')).toBe(21.5);
     expect(parseDecimalText('٣')).toBeNaN(); // Arabic-Indic digit three: not ASCII
+  });
+});
+
+describe('parseDecimalPrefix', () => {
+  it('reads a decimal followed by anything: the value is Number() of the bytes it consumed, and no longer prefix is a number', () => {
+    // Reference: ECMA-262 StringToNumber (Number()) on the consumed prefix; "longest" checked by
+    // trying the prefix one byte longer (common practice, no source).
+    const suffix = fc.constantFrom('', ',', ',1.5', ' ', 'x', 'e', 'E+', 'e-,', '.', '..5', '"', '\t');
+    fc.assert(
+      fc.property(decimalText, suffix, (text, tail) => {
+        const bytes = Buffer.from(text + tail, 'utf8');
+        const value = parseDecimalPrefix(bytes, 0, bytes.length);
+        const consumed = decimalEnd;
+        expect(consumed).toBeGreaterThan(0);
+        const prefix = (text + tail).slice(0, consumed);
+        expect(Object.is(value, Number(prefix))).toBe(true);
+        if (consumed < bytes.length) expect(Number.isNaN(parse((text + tail).slice(0, consumed + 1))) || (text + tail)[consumed] === 'e' || (text + tail)[consumed] === 'E').toBe(true);
+      }),
+      { numRuns: 10_000, seed: 77 },
+    );
+  });
+
+  it('parseDecimalPrefix("1.5,2") is 1.5 and stops at the comma; on "x" it is NaN and stops at the start', () => {
+    const bytes = Buffer.from('1.5,2');
+    expect(parseDecimalPrefix(bytes, 0, 5)).toBe(1.5);
+    expect(decimalEnd).toBe(3);
+    expect(parseDecimalPrefix(Buffer.from('x'), 0, 1)).toBeNaN();
+    expect(decimalEnd).toBe(0);
+    expect(parseDecimalPrefix(Buffer.from('2e,'), 0, 3)).toBe(2); // a marker without digits is not part of it
+    expect(decimalEnd).toBe(1);
   });
 });

@@ -179,6 +179,25 @@ describe('readCentroids', () => {
       ]);
     });
 
+    it('readCentroids reads each number as Number() does, whether bare (fast path), padded, quoted or in exponent form', async () => {
+      // Reference: ECMA-262 StringToNumber (Number()) of the field's number (common practice, no source).
+      const random = new Random(515);
+      const styles = [(v: string) => v, (v: string) => ` ${v}`, (v: string) => `${v}\t`, (v: string) => `"${v}"`, (v: string) => ` "${v}" `];
+      const lines = ['frame,id,x,y'];
+      const expected: { x: number; y: number }[] = [];
+      for (let k = 0; k < 400; k++) {
+        const numbers = [random.normal() * 10 ** random.integer(8), random.uniform() * 100].map((v, i) =>
+          i === 0 && k % 3 === 0 ? v.toExponential(random.integer(12)) : v.toFixed(random.integer(17)),
+        );
+        const style = (v: string) => styles[random.integer(styles.length)](v);
+        lines.push(`${k},${k},${style(numbers[0])},${style(numbers[1])}`);
+        expected.push({ x: Number(numbers[0]), y: Number(numbers[1]) });
+      }
+      const { frames, summary } = await read([lines.join('\n') + '\n'], { frameInterval: 0.01 });
+      expect(summary.rejectedRows).toBe(0);
+      expect(frames.map((f) => ({ x: f.x[0], y: f.y[0] }))).toEqual(expected);
+    });
+
     it('readCentroids quotes at most maxQuotedRejections rows but counts them all', async () => {
       // CONTRACTS.md §2: the report quotes "the first few" rejected rows.
       const text = 't,x,y\n' + Array.from({ length: 30 }, (_, k) => `${k},bad,1`).join('\n');

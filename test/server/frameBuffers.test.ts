@@ -31,6 +31,28 @@ describe('FrameBuffers', () => {
       expect(Array.from(frame.id!.subarray(0, 2))).toEqual([4294967295, 0]);
     });
 
+    it('decode(bins) views an aligned bin in place (zero-copy) and copies an unaligned one, checking both', () => {
+      const b = new FrameBuffers();
+      const x = bin([1.5, -2], 'f64', 8); // byte offset 8: aligned
+      const y = bin([3, 4], 'f64', 3); // byte offset 3: not aligned
+      const id = bin([7, 9], 'u32', 4);
+      const frame = b.decode({ index: 0, t: 0, x, y, id }, 64, 1, 10);
+      expect(frame.x.buffer).toBe(x.buffer); // the message's own bytes
+      expect(frame.x.byteOffset).toBe(x.byteOffset);
+      expect(frame.y.buffer).not.toBe(y.buffer); // copied into the connection's buffer
+      expect(frame.id!.buffer).toBe(id.buffer);
+      expect(Array.from(frame.x.subarray(0, 2))).toEqual([1.5, -2]);
+      expect(Array.from(frame.y.subarray(0, 2))).toEqual([3, 4]);
+      expect(Array.from(frame.id!.subarray(0, 2))).toEqual([7, 9]);
+      // a pixel size other than 1 needs the scaled copy, aligned or not
+      const scaled = b.decode({ index: 1, t: 0.1, x: bin([1.5, -2], 'f64', 8), y }, 64, 2, 10);
+      expect(Array.from(scaled.x.subarray(0, 2))).toEqual([3, -4]);
+      // the zero-copy path still refuses values that are not finite
+      for (const bad of [NaN, Infinity, -Infinity]) {
+        expect(() => b.decode({ index: 2, t: 0.2, x: bin([1, bad], 'f64', 16), y: bin([1, 2], 'f64', 16) }, 64, 1, 10)).toThrow(/not finite/);
+      }
+    });
+
     it('decode(bins, floatBits 32) reads float32 and scales by the pixel size', () => {
       const frame = new FrameBuffers().decode({ index: 0, t: 0, x: bin([0.5, 3], 'f32'), y: bin([1, 2], 'f32') }, 32, 0.1, 10);
       expect(Array.from(frame.x.subarray(0, 2))).toEqual([0.5 * 0.1, 3 * 0.1]);

@@ -1,6 +1,6 @@
 import type { Frame } from '../../src/frame.js';
 import { IoError } from './ioError.js';
-import { parseDecimal } from './parseDecimal.js';
+import { decimalEnd, parseDecimal, parseDecimalPrefix } from './parseDecimal.js';
 
 /** The centroid columns jostle knows (CONTRACTS §2); any other column is ignored. */
 export type CentroidColumn = 'x' | 'y' | 'z' | 't' | 'frame' | 'id' | 'intensity';
@@ -375,11 +375,16 @@ export class CentroidCsvParser {
     let field = 0;
     let position = start;
     for (;;) {
-      let fieldEnd = position;
-      while (fieldEnd < end && bytes[fieldEnd] !== COMMA) fieldEnd++;
-      if (field < fieldCount) {
-        const role = roles[field];
-        if (role !== NONE) {
+      const role = field < fieldCount ? roles[field] : NONE;
+      let fieldEnd: number;
+      if (role !== NONE) {
+        // Fast path: a bare number at the field's start, ended by a comma or the line's end (no
+        // separate scan for the comma); anything else takes the general path below.
+        let value = parseDecimalPrefix(bytes, position, end);
+        fieldEnd = decimalEnd;
+        if (fieldEnd === position || (fieldEnd < end && bytes[fieldEnd] !== COMMA)) {
+          fieldEnd = position;
+          while (fieldEnd < end && bytes[fieldEnd] !== COMMA) fieldEnd++;
           // Trim blanks and one pair of surrounding quotes.
           let a = position;
           let b = fieldEnd;
@@ -390,11 +395,14 @@ export class CentroidCsvParser {
             b--;
           }
           if (a === b) return this.reject(EMPTY_REASON[role], bytes, start, end);
-          const value = parseDecimal(bytes, a, b);
-          if (value !== value) return this.reject(NAN_REASON[role], bytes, start, end);
-          if (value === Infinity || value === -Infinity) return this.reject(INFINITE_REASON[role], bytes, start, end);
-          values[role] = value;
+          value = parseDecimal(bytes, a, b);
         }
+        if (value !== value) return this.reject(NAN_REASON[role], bytes, start, end);
+        if (value === Infinity || value === -Infinity) return this.reject(INFINITE_REASON[role], bytes, start, end);
+        values[role] = value;
+      } else {
+        fieldEnd = position;
+        while (fieldEnd < end && bytes[fieldEnd] !== COMMA) fieldEnd++;
       }
       field++;
       if (fieldEnd >= end) break;

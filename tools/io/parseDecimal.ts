@@ -43,6 +43,28 @@ const UPPER_E = 69;
  * parseDecimal(Buffer.from('nan'), 0, 3);      // → NaN
  */
 export function parseDecimal(bytes: Uint8Array, start: number, end: number): number {
+  const value = parseDecimalPrefix(bytes, start, end);
+  return decimalEnd === end ? value : NaN;
+}
+
+/**
+ * Where the last {@link parseDecimalPrefix} stopped (one past the number's last byte; the start
+ * when no number was read). A module-level cursor, so that the hot loop allocates nothing.
+ */
+export let decimalEnd = 0;
+
+/**
+ * Parses the longest decimal number (the grammar of {@link parseDecimal}) at the start of
+ * [start, end) and sets {@link decimalEnd} to where it stopped: a CSV reader can then check that
+ * a comma or the line's end follows, with no separate scan for the field's end. Returns NaN (and
+ * decimalEnd = start) when no number starts there; the value is the one `parseDecimal` gives for
+ * exactly the bytes [start, decimalEnd).
+ *
+ * @example
+ * parseDecimalPrefix(Buffer.from('1.5,2'), 0, 5); // → 1.5, decimalEnd = 3
+ */
+export function parseDecimalPrefix(bytes: Uint8Array, start: number, end: number): number {
+  decimalEnd = start;
   let i = start;
   let negative = false;
   if (i < end && (bytes[i] === PLUS || bytes[i] === MINUS)) {
@@ -81,25 +103,30 @@ export function parseDecimal(bytes: Uint8Array, start: number, end: number): num
   if (!sawDigit) return NaN;
   let exponent = 0;
   if (i < end && (bytes[i] === LOWER_E || bytes[i] === UPPER_E)) {
-    i++;
+    let k = i + 1;
     let exponentNegative = false;
-    if (i < end && (bytes[i] === PLUS || bytes[i] === MINUS)) {
-      exponentNegative = bytes[i] === MINUS;
-      i++;
+    if (k < end && (bytes[k] === PLUS || bytes[k] === MINUS)) {
+      exponentNegative = bytes[k] === MINUS;
+      k++;
     }
     let exponentDigits = 0;
-    while (i < end) {
-      const c = bytes[i];
+    while (k < end) {
+      const c = bytes[k];
       if (c < ZERO || c > NINE) break;
       // Saturate: beyond 1e6 the value is 0 or Infinity whatever follows.
       if (exponent < 1_000_000) exponent = exponent * 10 + (c - ZERO);
       exponentDigits++;
-      i++;
+      k++;
     }
-    if (exponentDigits === 0) return NaN;
-    if (exponentNegative) exponent = -exponent;
+    // An exponent marker without digits is not part of the number (it ends before the marker).
+    if (exponentDigits > 0) {
+      i = k;
+      if (exponentNegative) exponent = -exponent;
+    } else {
+      exponent = 0;
+    }
   }
-  if (i !== end) return NaN;
+  decimalEnd = i;
   if (significantDigits <= FAST_PATH_DIGITS) {
     if (mantissa === 0) return negative ? -0 : 0;
     const e = scale + exponent;
@@ -109,6 +136,6 @@ export function parseDecimal(bytes: Uint8Array, start: number, end: number): num
   // Slow path: long mantissa or large exponent. The text is validated ASCII, so a byte-to-char
   // copy is exact, and Number() rounds correctly.
   let text = '';
-  for (let k = start; k < end; k++) text += String.fromCharCode(bytes[k]);
+  for (let k = start; k < i; k++) text += String.fromCharCode(bytes[k]);
   return Number(text);
 }

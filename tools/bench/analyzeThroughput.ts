@@ -8,7 +8,7 @@ import { scenarios } from '../../src/simulate/scenarios.js';
 import { analyzeFile } from '../cli/analyze.js';
 import { readCentroids } from '../io/readCentroids.js';
 import { writeSimulation } from '../simulate/writeSimulation.js';
-import { machineLine, measureRateAsync, table, type BenchFigure } from './harness.js';
+import { machineLine, measureInterleaved, table, type BenchFigure } from './harness.js';
 
 export async function analyzeThroughput(runs = 3): Promise<BenchFigure[]> {
   const folder = await mkdtemp(join(tmpdir(), 'jostle-bench-'));
@@ -19,18 +19,15 @@ export async function analyzeThroughput(runs = 3): Promise<BenchFigure[]> {
     const linkedSummary = await writeSimulation(base, { csvPath: linked, truthPath: join(folder, 'l.json') });
     await writeSimulation({ ...base, ids: false }, { csvPath: unlinked, truthPath: join(folder, 'u.json') });
     const rows = linkedSummary.rows;
-    const read = await measureRateAsync('CSV read only (baseline)', 'rows/s', async () => {
-      const summary = await readCentroids(linked, {}, () => undefined);
-      return summary.rows;
-    }, runs);
-    const withIds = await measureRateAsync('analyze, ids given', 'centroids/s', async () => {
-      const report = await analyzeFile(linked, { progress: false });
-      return report.input.rows as number;
-    }, runs);
-    const withoutIds = await measureRateAsync('analyze, unlinked (linking on)', 'centroids/s', async () => {
-      const report = await analyzeFile(unlinked, { progress: false });
-      return report.input.rows as number;
-    }, runs);
+    // interleaved rounds, so that the ratios to the bare read see the same machine
+    const [read, withIds, withoutIds] = await measureInterleaved(
+      [
+        { name: 'CSV read only (baseline)', unit: 'rows/s', work: async () => (await readCentroids(linked, {}, () => undefined)).rows },
+        { name: 'analyze, ids given', unit: 'centroids/s', work: async () => (await analyzeFile(linked, { progress: false })).input.rows as number },
+        { name: 'analyze, unlinked (linking on)', unit: 'centroids/s', work: async () => (await analyzeFile(unlinked, { progress: false })).input.rows as number },
+      ],
+      runs,
+    );
     void rows;
     return [read, withIds, withoutIds];
   } finally {

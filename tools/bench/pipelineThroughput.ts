@@ -6,7 +6,7 @@ import type { Frame } from '../../src/frame.js';
 import { Pipeline } from '../../src/pipeline/pipeline.js';
 import { refreshContext } from '../../src/pipeline/refreshContext.js';
 import { benchFrames } from './benchFrames.js';
-import { machineLine, measureRate, table, type BenchFigure } from './harness.js';
+import { machineLine, measureInterleaved, measureRate, table, type BenchFigure } from './harness.js';
 import { bareMsdKernel, naiveMsd } from './msdPeers.js';
 
 /** Runs one pipeline (every detector on) over `frames`; returns the centroids fed. */
@@ -25,18 +25,24 @@ export function runPipeline(frames: Frame[], lagCount = 16, detectors = true): n
   return centroids;
 }
 
-export function pipelineThroughput(runs = 5, particles = 1000, frameCount = 2000): BenchFigure[] {
+export async function pipelineThroughput(runs = 5, particles = 1000, frameCount = 2000): Promise<BenchFigure[]> {
   const frames = benchFrames({ particles, frames: frameCount });
-  const bare = measureRate(`bare MSD kernel, ${particles} particles, 16 lags (baseline)`, 'centroids/s', () => bareMsdKernel(frames), runs);
-  const pipeline = measureRate(`pipeline, ids given, ${particles} particles, 16 lags, every detector`, 'centroids/s', () => runPipeline(frames), runs);
-  const noDetectors = measureRate(`pipeline, ids given, no detectors`, 'centroids/s', () => runPipeline(frames, 16, false), runs);
+  // interleaved rounds, so that the ratios to the bare kernel see the same machine
+  const [bare, pipeline, noDetectors] = await measureInterleaved(
+    [
+      { name: `bare MSD kernel, ${particles} particles, 16 lags (baseline)`, unit: 'centroids/s', work: () => bareMsdKernel(frames) },
+      { name: `pipeline, ids given, ${particles} particles, 16 lags, every detector`, unit: 'centroids/s', work: () => runPipeline(frames) },
+      { name: `pipeline, ids given, no detectors`, unit: 'centroids/s', work: () => runPipeline(frames, 16, false) },
+    ],
+    runs,
+  );
   const short = frames.slice(0, 200);
   const naive = measureRate(`naive MSD (recompute every frame, 200 frames)`, 'centroids/s', () => naiveMsd(short), 3);
   return [bare, pipeline, noDetectors, naive];
 }
 
 if (import.meta.url === `file://${process.argv[1]}`) {
-  const figures = pipelineThroughput(Number(process.argv[2] ?? 5));
+  const figures = await pipelineThroughput(Number(process.argv[2] ?? 5));
   console.log(machineLine());
   console.log(table(figures, figures[0]));
 }

@@ -179,20 +179,26 @@ describe('Pipeline', () => {
 });
 
 describe('Pipeline rolling window and third axis', () => {
-  it.each([2, 3] as const)('matches a brute-force per-frame-corrected MSD at every lag, with gaps and tracks coming and going (%i-D)', (dims) => {
+  it.each([
+    [2, 12],
+    [3, 12],
+    [2, 700],
+  ] as const)('matches a brute-force per-frame-corrected MSD at every lag, with gaps and tracks coming and going (%i-D, %i particles)', (dims, particles) => {
+    // With 700 particles arriving over the first 200 slots, the track table grows (256 → 512 →
+    // 1024 rows) while earlier tracks are live: their rings must survive the new layout.
     // The definition, computed directly (common practice, no source): m(t) is the mean one-slot
     // step of the tracks present at t and t − 1, X(t) = Σ m, and the lag-n displacement of a track
     // present at both ends is corrected by X(t) − X(t − n); MSD(n) = N/(N−1)·Σ_axes ⟨(Δ − ΔX)²⟩,
     // with N/(N−1) = 1/(1 − frames/steps) over frames with two or more steps.
     const random = new Random(41);
     const slots = 300;
-    const particles = 12;
+    const arrival = (p: number) => (particles > 12 ? Math.floor((p * 200) / particles) : 0);
     const pos: (number[] | null)[][] = [];
     for (let s = 0; s < slots; s++) {
       const row: (number[] | null)[] = [];
       for (let p = 0; p < particles; p++) {
         // each particle misses 10 % of the slots, and particles 0–3 are absent from slot 150 to 180
-        const absent = random.uniform() < 0.1 || (p < 4 && s >= 150 && s < 180);
+        const absent = s < arrival(p) || random.uniform() < 0.1 || (p < 4 && s >= 150 && s < 180);
         row.push(absent ? null : Array.from({ length: dims }, (_, a) => p + a + 0.1 * Math.sin(s / 7 + p) + 0.05 * random.normal() + 0.01 * s));
       }
       pos.push(row);

@@ -293,7 +293,7 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     const intensity = steps.intensity;
 
     // Per-track records: position, intensity history (and its frame-to-frame noise at baseline).
-    // Each particle's record is kept for the steps below (one Map probe per particle).
+    // Each particle's record is kept for the steps below (one lookup per particle).
     const recordOf = this.recordOf;
     for (let i = 0; i < n; i++) {
       const id = steps.trackId[i];

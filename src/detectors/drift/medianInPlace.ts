@@ -7,8 +7,9 @@
  * A caller that knows roughly where the median lies (the drift detector: the frame's mean step,
  * give or take a few standard errors) passes `centre` and `halfWidth`: when both middle entries
  * fall inside that window, only the window's entries are selected over (after one counting pass
- * whose only branch is rarely taken), about 4× faster on fresh data (1,000 normal steps, a window
- * of ± 4 standard errors: 3 µs against 13 µs); otherwise the full selection runs. The result is
+ * whose only branch is rarely taken), 4–6× faster on fresh data (1,000 normal steps, a window
+ * of ± 4 standard errors: 2–3 µs against 12–15 µs, tools/bench/medianSelection.ts); otherwise
+ * the full selection runs. The result is
  * the same either way.
  *
  * @param values scratch buffer, reordered

@@ -11,8 +11,9 @@ export interface GammaCusumThresholdParameters {
   /**
    * Markov-chain states of each ARL evaluation's coarser grid (default 50). Against 200 states,
    * 50 give ARL0 within 2·10⁻⁴ relative (h = 6.5, q = 1.05, n = 100: 9959.07 vs 9959.58 frames;
-   * n = 500, 2000, 40: within 2·10⁻⁵), i.e. h within 2·10⁻⁴ nats, at a quarter to a tenth of the
-   * time of 100 states (tools/bench: the run-start design of the temperature detector).
+   * n = 500, 2000, 40: within 2·10⁻⁵), i.e. h within 2·10⁻⁴ nats, for a quarter to a tenth of the
+   * time of 100 states (the temperature detector's slowest push, its run-start design, fell from
+   * 75 to 26 ms in tools/bench/detectorCosts.ts).
    */
   states?: number;
 }

@@ -391,6 +391,10 @@ export class Pipeline {
         driftVelocity: [velocity[0], velocity[1]],
       }, ids);
     }
+    // After dropped frames, tracks whose gap already exceeds the allowance end before this frame's
+    // particles are matched to them (the end-of-frame sweep, step 5, runs only on frames that
+    // arrive, so without this a track could bridge a longer gap than maxGapFrames).
+    const endedEarly = slotGap > 1 ? tracks.endStale(slot - 1, o.maxGapFrames) : undefined;
     // 2. Present particles and their one-slot steps.
     let present = 0;
     let stepCount = 0;
@@ -684,7 +688,7 @@ export class Pipeline {
     }
     // 5. Tracks unseen for more than maxGapFrames end now.
     const ended = tracks.endStale(slot, o.maxGapFrames);
-    this.foldEnded(ended);
+    this.foldEnded(endedEarly !== undefined && endedEarly.length > 0 ? [...endedEarly, ...ended] : ended);
     // 6. Detectors and alerts.
     steps.t = frame.t;
     steps.frameIndex = frame.index;

@@ -218,9 +218,8 @@ describe('Pipeline rolling window and third axis', () => {
       });
     }
     const seen = (s: number) => s !== 200 && s !== 201;
-    // Brute force. Track identity follows the pipeline's rule: after each received frame, a track
-    // not seen for more than maxGapFrames (default 2) slots ends; a lag is only taken within one
-    // track. A frame where nobody has a one-slot step (after the dropped frames) moves X by the
+    // Brute force. A track ends once it has missed more than maxGapFrames (default 2) slots, also
+    // across dropped frames; a lag is only taken within one track. A frame where nobody has a one-slot step (after the dropped frames) moves X by the
     // mean per-slot displacement of the tracks that bridged the gap, times the slots bridged.
     const X: number[][] = [];
     const cumulative = new Array(dims).fill(0);
@@ -241,6 +240,7 @@ describe('Pipeline rolling window and third axis', () => {
       for (let p = 0; p < particles; p++) {
         const v = pos[s][p];
         if (!v) continue;
+        if (track[p] >= 0 && s - lastSeen[p] > 3) track[p] = -1; // a gap of more than 2 missed slots
         if (track[p] < 0) track[p] = tracks++;
         trackOf[s][p] = track[p];
         const last = lastSeen[p];

@@ -295,7 +295,8 @@ export function buildReport(input: ReportInput): Report {
     drift: [
       (driftVelocity?.value[0] ?? 0) * o.frameInterval,
       (driftVelocity?.value[1] ?? 0) * o.frameInterval,
-      0,
+      // z (3-D): the same increment estimate, Σm_z/duration; the report's velocity stays in-plane
+      driftVelocity && dims === 3 ? (input.commonMode[14] / (input.commonModeSlots * o.frameInterval)) * o.frameInterval : 0,
     ],
     factor: input.inverseCount < 1 ? 1 / (1 - input.inverseCount) : 1,
     frameInterval: o.frameInterval,

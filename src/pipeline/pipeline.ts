@@ -112,6 +112,8 @@ export class Pipeline {
   private trackIndex: Int32Array = new Int32Array(0);
   private steps!: FrameSteps;
   private stepZ: Float64Array = new Float64Array(0);
+  // One-slot z steps of the frame (3-D), in step order, for the common-mode sums.
+  private stepDz: Float64Array = new Float64Array(0);
   private gapDx: Float64Array = new Float64Array(0);
   private gapCount = 0;
   private context: DetectorContext;
@@ -327,6 +329,7 @@ export class Pipeline {
     this.ids = new Uint32Array(capacity);
     this.trackIndex = new Int32Array(capacity);
     this.stepZ = new Float64Array(capacity);
+    this.stepDz = new Float64Array(capacity);
     this.gapDx = new Float64Array(capacity * 3);
     this.steps = {
       t: 0,
@@ -456,7 +459,9 @@ export class Pipeline {
         mean[1] += steps.dy[s];
         if (dims === 3) {
           const p = steps.stepParticle[s];
-          zSum += this.stepZ[p] - tracks.ringZ[tracks.ringCell(this.trackIndex[p], slot - 1)];
+          const dz = this.stepZ[p] - tracks.ringZ[tracks.ringCell(this.trackIndex[p], slot - 1)];
+          this.stepDz[s] = dz;
+          zSum += dz;
         }
       }
       mean[0] /= stepCount;
@@ -484,6 +489,7 @@ export class Pipeline {
     if (stepCount === 0 && gapCount > 0) {
       this.commonMode[0] += mean[0] * slotGap;
       this.commonMode[7] += mean[1] * slotGap;
+      this.commonMode[14] += mean[2] * slotGap;
       this.commonModeSlots += slotGap;
     }
     const ringSlotIndex = slot % this.ringSize;
@@ -734,18 +740,25 @@ export class Pipeline {
     // within-frame sums of squares per axis, for s_t (self-calibrating SE) and the pooled variance
     let ssx = 0;
     let ssy = 0;
+    let ssz = 0;
     for (let s = 0; s < stepCount; s++) {
       const ex = steps.dx[s] - mean[0];
       const ey = steps.dy[s] - mean[1];
       ssx += ex * ex;
       ssy += ey * ey;
     }
+    if (this.dims === 3) {
+      for (let s = 0; s < stepCount; s++) {
+        const ez = this.stepDz[s] - mean[2];
+        ssz += ez * ez;
+      }
+    }
     const n = stepCount;
-    const axes: [number, number, number][] = [
-      [0, mean[0], ssx],
-      [7, mean[1], ssy],
-    ];
-    for (const [offset, m, ss] of axes) {
+    // per axis a at offset 7a: Σm, Σs²/N, ΣNm², ΣNm, ΣN, within-frame SS, its degrees of freedom
+    for (let a = 0; a < this.dims; a++) {
+      const offset = 7 * a;
+      const m = mean[a];
+      const ss = a === 0 ? ssx : a === 1 ? ssy : ssz;
       const s2 = ss / (n - 1);
       cm[offset] += m; // Σ m
       cm[offset + 1] += s2 / n; // Σ s²/N (variance of v̂'s numerator)

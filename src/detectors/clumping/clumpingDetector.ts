@@ -356,10 +356,10 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     if (n >= 2) {
       const grid = this.grid;
       grid.build(steps.x, steps.y, n, this.closeDistance);
-      let found = grid.closePairs(steps.x, steps.y, n, this.closeDistance, this.pairKeys);
+      let found = grid.closePairs(n, this.closeDistance, this.pairKeys);
       if (found < 0) {
         this.pairKeys = new Float64Array(-2 * found);
-        found = grid.closePairs(steps.x, steps.y, n, this.closeDistance, this.pairKeys);
+        found = grid.closePairs(n, this.closeDistance, this.pairKeys);
       }
       for (let h = 0; h < found; h++) {
         const key = this.pairKeys[h];

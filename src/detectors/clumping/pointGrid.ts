@@ -148,16 +148,14 @@ export class PointGrid {
    * {@link PointGrid.pairsWithin}), in ascending i then j, written to `out` as keys i·count + j;
    * returns how many, or −(how many) when `out` is too short (grow it and ask again). Requires
    * `r` ≤ cellSize. Each pair of neighbouring cells is visited once (a cell with itself and its 4
-   * forward neighbours), so this does about half the work of `pairsWithin` on every point. `x`, `y`
-   * must be the points given to `build`: the sweep reads build's copies in cell order.
+   * forward neighbours), so this does about half the work of `pairsWithin` on every point. The
+   * points are the ones given to `build`: the sweep reads build's copies in cell order.
    * O(count + pairs · log pairs).
    * @example
    * grid.build(x, y, 3, 1);
-   * grid.closePairs(Float64Array.of(0, 0.5, 9), Float64Array.of(0, 0, 9), 3, 1, keys) // → 1 (keys[0] = 0·3 + 1)
+   * grid.closePairs(3, 1, keys) // → 1 (keys[0] = 0·3 + 1)
    */
-  closePairs(x: ArrayLike<number>, y: ArrayLike<number>, count: number, r: number, out: Float64Array): number {
-    void x; // the copies made by build are read instead (sequentially)
-    void y;
+  closePairs(count: number, r: number, out: Float64Array): number {
     const columns = this.columns;
     const rows = this.rows;
     const start = this.cellStart;

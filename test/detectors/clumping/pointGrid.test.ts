@@ -70,16 +70,16 @@ describe('PointGrid', () => {
     });
   });
   describe('#closePairs', () => {
-    it('closePairs(x, y, count, r, out) lists every pair i < j with d ≤ r, ascending, as a brute-force search does', () => {
+    it('closePairs(count, r, out) after build(x, y, count, r) lists every pair i < j with d ≤ r, ascending, as a brute-force search does', () => {
       for (const seed of [1, 2, 3]) {
         const { x, y } = points(300, 40, 30, seed);
         const grid = new PointGrid();
         grid.build(x, y, 300, 1.5);
         let out = new Float64Array(4);
-        let n = grid.closePairs(x, y, 300, 1.5, out);
+        let n = grid.closePairs(300, 1.5, out);
         if (n < 0) {
           out = new Float64Array(-n);
-          n = grid.closePairs(x, y, 300, 1.5, out);
+          n = grid.closePairs(300, 1.5, out);
         }
         const expected: number[] = [];
         for (let i = 0; i < 300; i++) {

@@ -256,7 +256,9 @@ function commonModeExcess(input: ReportInput, global: Float64Array | undefined):
   const duration = input.commonModeSlots;
   let chi = 0;
   let df = 0;
-  for (const offset of [0, 7]) {
+  // every tracked axis (z too in 3-D): the common-mode sums are kept at offset 7·axis
+  for (let axis = 0; axis < input.dims; axis++) {
+    const offset = 7 * axis;
     const withinVariance = cm[offset + 5] / cm[offset + 6];
     if (!(withinVariance > 0)) return null;
     const u = cm[offset] / duration;

@@ -304,6 +304,21 @@ describe('Pipeline rolling window and third axis', () => {
     expect(Math.abs(rolling.msd[0].value / (4 * 0.3 * 0.05) - 1)).toBeLessThan(0.05);
   });
 
+  it('chooses per-frame subtraction for a common-mode shake along z alone (3-D), and not for the same data without it', () => {
+    // As the 2-D case above (detectors.md §1), with the excess summed over every tracked axis.
+    const settings = { seed: 26, particles: 20, frames: 2000, frameInterval: 0.01, diffusion: 0.5, exposure: 0 };
+    const xy = brownianFrames(settings);
+    const zs = brownianFrames({ ...settings, seed: 27 });
+    const still = xy.map((f, i) => ({ ...f, z: Float64Array.from(zs[i].x.subarray(0, f.count)) }));
+    const shaken = xy.map((f, i) => ({ ...f, z: Float64Array.from(zs[i].x.subarray(0, f.count), (v) => v + 0.05 * Math.sin(2 * Math.PI * 7 * f.t)) }));
+    expect(run(still, { frameInterval: 0.01, exposure: 0 }).diffusion.driftCorrection.method).toBe('fitted');
+    const report = run(shaken, { frameInterval: 0.01, exposure: 0 });
+    expect(report.diffusion.driftCorrection.method).toBe('per-frame');
+    const z = report.diffusion.perAxis.z!;
+    expect(z.ci95[0]).toBeLessThan(0.5);
+    expect(z.ci95[1]).toBeGreaterThan(0.5);
+  });
+
   it('removes a constant drift along z too with the fitted correction, so D_z is unbiased', () => {
     // A constant velocity u adds u²τ² to every axis's MSD; the increments give û = Σm/T
     // (detectors.md §1) per axis. Truth: D = 0.3 µm²/s on each axis, z creeping at 2 µm/s.

@@ -49,3 +49,42 @@ export function benchFrames(options: BenchFrameOptions): Frame[] {
   }
   return frames;
 }
+
+/**
+ * A live synthetic field for the paced and streaming benchmarks (benchRig.ts, stallProbe.ts):
+ * N particles at seeded uniform positions (density 0.01 µm⁻², ids 0…N−1) that `advance()` moves by
+ * one Brownian step (D = 0.4 µm²/s) drawn from 2¹⁶ precomputed normal steps, cycled, so that making
+ * frames costs almost nothing beside the work being measured. The arrays are reused in place.
+ */
+export class CycledField {
+  readonly x: Float64Array;
+  readonly y: Float64Array;
+  readonly id: Uint32Array;
+  private readonly steps = new Float64Array(1 << 16);
+  private cursor = 0;
+
+  constructor(readonly particles: number, frameInterval: number, seed = 42) {
+    const random = new Random(seed);
+    const field = Math.max(100, Math.sqrt(particles / 0.01));
+    this.x = new Float64Array(particles);
+    this.y = new Float64Array(particles);
+    this.id = new Uint32Array(particles);
+    for (let p = 0; p < particles; p++) {
+      this.x[p] = random.uniform() * field;
+      this.y[p] = random.uniform() * field;
+      this.id[p] = p;
+    }
+    const sd = Math.sqrt(2 * 0.4 * frameInterval);
+    for (let i = 0; i < this.steps.length; i++) this.steps[i] = sd * random.normal();
+  }
+
+  /** Moves every particle by one step. O(N). */
+  advance(): void {
+    const mask = this.steps.length - 1;
+    for (let p = 0; p < this.particles; p++) {
+      this.x[p] += this.steps[this.cursor];
+      this.y[p] += this.steps[(this.cursor + 7919) & mask];
+      this.cursor = (this.cursor + 1) & mask;
+    }
+  }
+}

@@ -7,7 +7,7 @@
 // { inject: <epoch ms> } just before sending it; paced, it prints { i, s } (frame index, epoch ms
 // when sent) for every frame, for the latency figures.
 // Usage: tsx tools/bench/benchRig.ts <ws url> <token> <msgpack|json> <particles> <seconds> [pace=0] [injectEvery=0] [frameInterval=0.001]
-import { Random } from '../../src/stats/random.js';
+import { CycledField } from './benchFrames.js';
 import { RigClient } from '../rig/rigClient.js';
 
 const [url, token, encoding, particlesText, secondsText] = process.argv.slice(2);
@@ -19,32 +19,15 @@ const injectEvery = Number(process.argv[8] ?? 0);
 const frameInterval = Number(process.argv[9] ?? 0.001);
 const rig = await RigClient.connect(url, { token, encoding: encoding === 'json' ? 'json' : 'msgpack' });
 await rig.open({ type: 'run', run: `bench-${encoding}`, frameInterval, exposure: 0.0008, radius: 0.5, temperature: 22, label: 'benchmark rig' });
-const random = new Random(42);
-const field = Math.max(100, Math.sqrt(particles / 0.01));
-const x = new Float64Array(particles);
-const y = new Float64Array(particles);
-const id = new Uint32Array(particles);
-for (let p = 0; p < particles; p++) {
-  x[p] = random.uniform() * field;
-  y[p] = random.uniform() * field;
-  id[p] = p;
-}
 // Precomputed steps, cycled (so that generating them does not load the rig's core).
-const stepCount = 1 << 16;
-const steps = new Float64Array(stepCount);
-const sd = Math.sqrt(2 * 0.4 * frameInterval);
-for (let i = 0; i < stepCount; i++) steps[i] = sd * random.normal();
+const synthetic = new CycledField(particles, frameInterval);
+const { x, y, id } = synthetic;
 const start = performance.now();
 let sent = 0;
 let nextIndex = 0;
-let cursor = 0;
 let nextPrint = start + 1000;
 while (performance.now() - start < seconds * 1000) {
-  for (let p = 0; p < particles; p++) {
-    x[p] += steps[cursor];
-    y[p] += steps[(cursor + 7919) & (stepCount - 1)];
-    cursor = (cursor + 1) & (stepCount - 1);
-  }
+  synthetic.advance();
   if (injectEvery > 0 && sent > 0 && sent % injectEvery === 0) {
     process.stdout.write(`${JSON.stringify({ inject: performance.timeOrigin + performance.now() })}\n`);
     await rig.frame({ index: nextIndex++, t: (sent - 1.5) * frameInterval, count: particles, x, y, id });

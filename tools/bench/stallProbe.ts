@@ -6,7 +6,7 @@
 import { createDetectors } from '../../src/detectors/createDetectors.js';
 import { Pipeline } from '../../src/pipeline/pipeline.js';
 import { refreshContext } from '../../src/pipeline/refreshContext.js';
-import { Random } from '../../src/stats/random.js';
+import { CycledField } from './benchFrames.js';
 
 const particles = Number(process.argv[2] ?? 1000);
 const fps = Number(process.argv[3] ?? 100);
@@ -14,32 +14,15 @@ const dataSeconds = Number(process.argv[4] ?? 300);
 const reportEvery = Number(process.argv[5] ?? 10);
 const dt = 1 / fps;
 const pipeline = new Pipeline({ frameInterval: dt, exposure: 0.0008, radius: 0.5, temperature: 22 }, createDetectors, refreshContext);
-const random = new Random(42);
-const field = Math.max(100, Math.sqrt(particles / 0.01));
-const x = new Float64Array(particles);
-const y = new Float64Array(particles);
-const id = new Uint32Array(particles);
-for (let p = 0; p < particles; p++) {
-  x[p] = random.uniform() * field;
-  y[p] = random.uniform() * field;
-  id[p] = p;
-}
-const stepCount = 1 << 16;
-const steps = new Float64Array(stepCount);
-const sd = Math.sqrt(2 * 0.4 * dt);
-for (let i = 0; i < stepCount; i++) steps[i] = sd * random.normal();
-let cursor = 0;
+const synthetic = new CycledField(particles, dt);
+const { x, y, id } = synthetic;
 const slow: { i: number; t: number; ms: number; what: string }[] = [];
 const reportMs: number[] = [];
 let pushTotal = 0;
 let reportTotal = 0;
 const frames = Math.round(dataSeconds * fps);
 for (let i = 0; i < frames; i++) {
-  for (let p = 0; p < particles; p++) {
-    x[p] += steps[cursor];
-    y[p] += steps[(cursor + 7919) & (stepCount - 1)];
-    cursor = (cursor + 1) & (stepCount - 1);
-  }
+  synthetic.advance();
   const a = performance.now();
   pipeline.push({ index: i, t: i * dt, count: particles, x, y, id });
   const b = performance.now();

@@ -2,12 +2,12 @@ import type { AlertLevel, Condition } from '../../alerts/condition.js';
 import { DIMER_DIFFUSION_RATIO } from '../../physics/clusterDiffusionRatios.js';
 import { clopperPearson, normalUpperTail } from '../../stats/quantiles.js';
 import type { Detector } from '../detector.js';
-import { PointGrid } from './pointGrid.js';
 import type { DetectorContext } from '../detectorContext.js';
 import type { FrameSteps } from '../frameSteps.js';
 import { TrackCache } from '../trackCache.js';
 import { persistenceFrames } from './chancePersistence.js';
 import { clarkEvans, NearestNeighbourScratch, type ClarkEvansResult } from './clarkEvans.js';
+import { ClosePairCandidates } from './closePairCandidates.js';
 import { ClosePairEpisodes } from './closePairEpisodes.js';
 import { countUpperTail } from './countUpperTail.js';
 import { segmentRelativeSe } from './segmentRelativeSe.js';
@@ -181,7 +181,8 @@ function fmt(value: number, digits = 2): string {
  * signal (or too small an effect) → `info`. Every warn onset needs a fresh significant look, so
  * false warns per hour ≤ Σα × blocks per hour = `falseWarnsPerHour` (Bonferroni).
  *
- * Cost per frame: O(N) on average (a uniform grid for close pairs; Clark–Evans on 50 frames of each baseline block and on block-end
+ * Cost per frame: O(N) on average (a list of close-pair candidates kept across frames and rebuilt
+ * on a uniform grid, closePairCandidates.ts; Clark–Evans on 50 frames of each baseline block and on block-end
  * frames), memory O(tracks present + open pairs).
  *
  * @example
@@ -199,7 +200,8 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
   private readonly episodes = new ClosePairEpisodes();
   private readonly scratch = new NearestNeighbourScratch();
   private pairKeys = new Float64Array(64);
-  private readonly grid = new PointGrid();
+  /** Close-pair list, skin r_c (made once r_c is known). */
+  private candidates: ClosePairCandidates | undefined;
   private readonly before: Float64Array;
   private readonly after: Float64Array;
   private pending: PendingMerge[] = [];
@@ -350,16 +352,16 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
       }
     }
 
-    // Close pairs within r_c, by a uniform grid of r_c cells (no O(N²); no kd-tree rebuilt per
-    // frame): pairs i < j, in ascending i then j.
+    // Close pairs within r_c: a list of the pairs within r_c + skin kept across frames, measured
+    // each frame and rebuilt on a uniform grid when a track has moved skin/2 (no O(N²); no
+    // kd-tree rebuilt per frame): pairs i < j, in ascending i then j.
     let closePairs = 0;
     if (n >= 2) {
-      const grid = this.grid;
-      grid.build(steps.x, steps.y, n, this.closeDistance);
-      let found = grid.closePairs(n, this.closeDistance, this.pairKeys);
+      const candidates = (this.candidates ??= new ClosePairCandidates(this.closeDistance));
+      let found = candidates.find(steps.x, steps.y, steps.trackId, steps.trackRow, n, this.closeDistance, this.pairKeys);
       if (found < 0) {
         this.pairKeys = new Float64Array(-2 * found);
-        found = grid.closePairs(n, this.closeDistance, this.pairKeys);
+        found = candidates.find(steps.x, steps.y, steps.trackId, steps.trackRow, n, this.closeDistance, this.pairKeys);
       }
       for (let h = 0; h < found; h++) {
         const key = this.pairKeys[h];

@@ -144,6 +144,42 @@ export class PointGrid {
   }
 
   /**
+   * The points given to `build` within distance `r` µm of (qx, qy) (d² ≤ r²), as their indices in
+   * `out` in no set order; returns how many, or −(how many) when `out` is too short. Requires
+   * `r` ≤ cellSize. O(points nearby).
+   */
+  within(qx: number, qy: number, r: number, out: Int32Array): number {
+    const size = this.cellSize;
+    const columns = this.columns;
+    const rows = this.rows;
+    // cells of points outside the grid are clamped, as in build; a query beyond it reaches no cell
+    const c0 = Math.floor((qx - this.xMin) / size);
+    const r0 = Math.floor((qy - this.yMin) / size);
+    const r2 = r * r;
+    const start = this.cellStart;
+    const order = this.order;
+    const sx = this.sortedX;
+    const sy = this.sortedY;
+    let found = 0;
+    const columnLow = Math.max(0, c0 - 1);
+    const columnHigh = Math.min(columns - 1, c0 + 1);
+    if (columnLow > columnHigh) return 0;
+    for (let row = Math.max(0, r0 - 1); row <= Math.min(rows - 1, r0 + 1); row++) {
+      // the three cells of a row are one run of `order`
+      const runStart = start[row * columns + columnLow];
+      const runEnd = start[row * columns + columnHigh + 1];
+      for (let s = runStart; s < runEnd; s++) {
+        const dx = sx[s] - qx;
+        const dy = sy[s] - qy;
+        if (dx * dx + dy * dy > r2) continue;
+        if (found < out.length) out[found] = order[s];
+        found++;
+      }
+    }
+    return found > out.length ? -found : found;
+  }
+
+  /**
    * Every pair i < j of the first `count` points within distance `r` µm (d² ≤ r², as
    * {@link PointGrid.pairsWithin}), in ascending i then j, written to `out` as keys i·count + j;
    * returns how many, or −(how many) when `out` is too short (grow it and ask again). Requires

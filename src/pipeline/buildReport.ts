@@ -1,7 +1,7 @@
 import type { Alert, Estimate, Report } from '../report.js';
 import type { Detector } from '../detectors/detector.js';
 import type { Tag } from '../tag.js';
-import { anomalousExponent } from '../estimators/anomalousExponent.js';
+import { AnomalousExponentCache, anomalousExponent } from '../estimators/anomalousExponent.js';
 import { chooseEstimator } from '../estimators/chooseEstimator.js';
 import { cveFromSums } from '../estimators/cveFromSums.js';
 import { cveVariance } from '../estimators/cveVariance.js';
@@ -536,6 +536,8 @@ function exponentEstimate(
   const maxLagS = Math.min(input.options.consecutiveLags, Math.max(4, framesPerTrack / 4)) * input.options.frameInterval;
   const use = curve.filter((p) => p.lag <= maxLagS + 1e-12 && p.count >= 0.1 * firstCount && p.se > 0);
   if (use.length < 3) return null;
+  // one cache for the full fit and the leave-one-group-out fits (the same lags and exposure)
+  const cache = new AnomalousExponentCache(input.options.exposure);
   const fit = (values: number[]) =>
     anomalousExponent({
       lagsS: use.map((p) => p.lag),
@@ -543,7 +545,7 @@ function exponentEstimate(
       se: use.map((p) => p.se),
       dims: correction.dims,
       exposureS: input.options.exposure,
-    });
+    }, cache);
   const full = fit(use.map((p) => p.value));
   if (!full) return null;
   if (leaveOneOut.length >= 5) {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { anomalousExponent } from '../../src/estimators/anomalousExponent.js';
+import { AnomalousExponentCache, anomalousExponent } from '../../src/estimators/anomalousExponent.js';
 import { exposureAveragedPowerLaw } from '../../src/estimators/exposureAveragedPowerLaw.js';
 import { logLogSlope } from '../../src/estimators/logLogSlope.js';
 import { timeAveragedMsd } from '../../src/estimators/timeAveragedMsd.js';
@@ -93,5 +93,20 @@ describe('anomalousExponent', () => {
     // the jackknife SE is a real, finite spread (not a degenerate zero)
     expect(alphaSe).toBeGreaterThan(1e-4);
     expect(alphaSe).toBeLessThan(0.2);
+  });
+
+  it('a shared AnomalousExponentCache gives exactly the uncached fits, on curves with different points left out', () => {
+    // the cache holds the same grid shapes an uncached fit computes (common practice, no source)
+    const random = new Random(31);
+    const cache = new AnomalousExponentCache(0.4);
+    for (let k = 0; k < 8; k++) {
+      const alpha = 0.4 + 0.2 * k;
+      const msd = lags.map((n) => 4 * 0.3 * exposureAveragedPowerLaw(n, alpha, 0.4) * (1 + 0.02 * random.normal()) + 0.02);
+      const se = msd.map((value) => 0.03 * value);
+      if (k % 3 === 1) msd[k] = Number.NaN; // a point left out changes which lags are used
+      const input = { lagsS: lags, msd, se, dims: 2, exposureS: 0.4 };
+      expect(anomalousExponent(input, cache)).toEqual(anomalousExponent(input));
+    }
+    expect(() => anomalousExponent({ lagsS: lags, msd: lags, se: lags, dims: 1, exposureS: 0.1 }, cache)).toThrow(/exposure/);
   });
 });

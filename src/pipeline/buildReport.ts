@@ -743,7 +743,12 @@ function mergeDetectorSummaries(report: Report, detectors: readonly Detector[]):
   for (const detector of detectors) summaries[detector.name] = detector.summary();
   report.detectors = summaries;
   const drift = summaries.drift as Record<string, unknown> | undefined;
-  if (drift) Object.assign(report.drift, { ...drift, velocity: report.drift.velocity ?? drift.velocity ?? null });
+  if (drift) {
+    Object.assign(report.drift, { ...drift, velocity: report.drift.velocity ?? drift.velocity ?? null });
+    // the path (up to thousands of points) is given once, in report.drift.path
+    const { path: _path, ...rest } = drift;
+    summaries.drift = rest;
+  }
   const vibration = summaries.vibration as { peaks?: Report['vibration']['peaks'] } | undefined;
   if (vibration) Object.assign(report.vibration, vibration, { peaks: vibration.peaks ?? [] });
   const temperature = summaries.temperature as Record<string, unknown> | undefined;

@@ -364,4 +364,18 @@ describe('Pipeline with its detectors', () => {
     expect(alert).toBeDefined();
     expect(alert!.start).toBeCloseTo(frames[20].t, 9);
   });
+
+  it('gives the drift path once, in report.drift.path, and the rest of the drift summary in both places', async () => {
+    // a report bound: the path is the report's largest field after the track table (common practice, no source)
+    const { createDetectors } = await import('../../src/detectors/createDetectors.js');
+    const frames = brownianFrames({ seed: 32, particles: 20, frames: 200, frameInterval: 0.05, diffusion: 0.3 });
+    const pipeline = new Pipeline({ frameInterval: 0.05, exposure: 0 }, createDetectors);
+    for (const f of frames) pipeline.push(f);
+    const report = pipeline.report();
+    const drift = report.drift as unknown as { path: { t: number[] }; cusum: unknown };
+    const fragment = (report.detectors as Record<string, Record<string, unknown>>).drift;
+    expect(drift.path.t.length).toBeGreaterThan(10);
+    expect(fragment.path).toBeUndefined();
+    expect(fragment.cusum).toEqual(drift.cusum);
+  });
 });

@@ -58,4 +58,35 @@ export interface FrameSteps {
   endedY: Float64Array;
   /** Field of view, µm: bounding box of the data seen so far (or given by the run). */
   field: { xMin: number; xMax: number; yMin: number; yMax: number };
+  /**
+   * The frame's sums over its one-frame steps in x and y, when the pipeline made them (it keeps
+   * them for its own CVE, at no extra cost); hand-made frames may leave this out, and detectors
+   * then form the same sums themselves (see {@link StepSums}).
+   */
+  sums?: StepSums;
+}
+
+/**
+ * Sums over a frame's one-frame steps, x and y together, µm²: the terms of the
+ * covariance-based estimator (Vestergaard, Blainey & Flyvbjerg 2014, Phys. Rev. E 89:022726)
+ * for the raw steps d and for the residuals r = d − m about the frame's mean step m. A pair is a
+ * step whose track also made a step into the previous slot; its product is with that step (for
+ * residuals, with that step's residual about its own frame's mean).
+ */
+export interface StepSums {
+  /** Steps summed (all of the frame's steps). */
+  steps: number;
+  /** Σ(dx² + dy²). */
+  squares: number;
+  /** Steps with a previous step, and Σ(dx·dx₋₁ + dy·dy₋₁) over them. */
+  pairs: number;
+  products: number;
+  /** Σ(rx² + ry²). */
+  residualSquares: number;
+  /**
+   * Steps with a previous step made on a frame of at least 2 steps (a residual about a mean of
+   * one step is 0 by construction), and Σ(rx·rx₋₁ + ry·ry₋₁) over them.
+   */
+  residualPairs: number;
+  residualProducts: number;
 }

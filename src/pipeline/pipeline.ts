@@ -2,7 +2,7 @@ import { AlertEngine, type AlertChange } from '../alerts/alertEngine.js';
 import type { Condition } from '../alerts/condition.js';
 import type { Detector } from '../detectors/detector.js';
 import type { DetectorContext } from '../detectors/detectorContext.js';
-import type { FrameSteps } from '../detectors/frameSteps.js';
+import type { FrameSteps, StepSums } from '../detectors/frameSteps.js';
 import type { Frame } from '../frame.js';
 import { Linker } from '../linking/linker.js';
 import { msdLags } from '../msd/msdLags.js';
@@ -355,6 +355,7 @@ export class Pipeline {
       endedX: new Float64Array(capacity),
       endedY: new Float64Array(capacity),
       field: this.fieldBox,
+      sums: { steps: 0, squares: 0, pairs: 0, products: 0, residualSquares: 0, residualPairs: 0, residualProducts: 0 },
     };
     this.intensityScratch = new Float64Array(capacity);
   }
@@ -657,6 +658,22 @@ export class Pipeline {
     // group totals and the block), and clear it for the next frame.
     const global = this.globalStats;
     const cveEnd = previousOffset;
+    // The frame's step sums for the detectors (x and y), read off its CVE scratch before the fold.
+    const sums = steps.sums as StepSums;
+    const cy = CVE_WIDTH;
+    sums.steps = stepCount;
+    sums.squares = frameCve[CVE_SUM_SQUARES] + frameCve[cy + CVE_SUM_SQUARES];
+    sums.pairs = frameCve[CVE_PAIRS];
+    sums.products = frameCve[CVE_SUM_PRODUCTS] + frameCve[cy + CVE_SUM_PRODUCTS];
+    sums.residualSquares = frameCve[CVE_SUM_SQUARES_CORRECTED] + frameCve[cy + CVE_SUM_SQUARES_CORRECTED];
+    // the previous steps were all made into slot − 1: residuals there are about a mean of ≥ 2 steps or not
+    const residualPairsCount = this.stepsSlot === slot - 1 && this.stepsInSlot >= 2;
+    sums.residualPairs = residualPairsCount ? frameCve[CVE_PAIRS] : 0;
+    sums.residualProducts = residualPairsCount ? frameCve[CVE_SUM_PRODUCTS_CORRECTED] + frameCve[cy + CVE_SUM_PRODUCTS_CORRECTED] : 0;
+    if (stepCount > 0) {
+      this.stepsSlot = slot;
+      this.stepsInSlot = stepCount;
+    }
     if (stepCount > 0) {
       for (let i = 0; i < cveEnd; i++) {
         const v = frameCve[i];
@@ -721,6 +738,9 @@ export class Pipeline {
   }
 
   private frameMean = new Float64Array(3);
+  // The last slot with one-frame steps, and how many (for StepSums.residualPairs).
+  private stepsSlot = -2;
+  private stepsInSlot = 0;
   // Per-frame scratch records (see processFrame step 4): the frame's CVE sums, and its lag sums
   // per group (groups × width), with the groups seen in the frame; allocated once per run.
   private frameCve: Float64Array = new Float64Array(0);

@@ -156,7 +156,15 @@ export class NoiseDetector implements Detector<NoiseSummary> {
     if (Number.isNaN(this.blockStart)) this.blockStart = steps.t;
     const batch = Math.min(this.options.batches - 1, Math.floor((this.framesInBlock * this.options.batches) / this.options.blockFrames));
     const slot = steps.slot;
-    for (let i = 0; i < steps.stepCount; i++) {
+    const sums = steps.sums;
+    if (sums) {
+      // the pipeline's sums for this frame: the same terms as the loop below, in O(1)
+      this.squares[batch] += sums.squares;
+      this.squareCount[batch] += 2 * sums.steps;
+      this.products[batch] += sums.products;
+      this.productCount[batch] += 2 * sums.pairs;
+    }
+    for (let i = 0; i < (sums ? 0 : steps.stepCount); i++) {
       const a = steps.dx[i];
       const b = steps.dy[i];
       if (!Number.isFinite(a) || !Number.isFinite(b)) continue;

@@ -1,4 +1,4 @@
-import type { FrameSteps } from '../frameSteps.js';
+import type { FrameSteps, StepSums } from '../frameSteps.js';
 import { TrackCache } from '../trackCache.js';
 
 /** Sums over a run of frames, as returned by {@link StepCovarianceRing.sumSince}. */
@@ -85,6 +85,10 @@ export class StepCovarianceRing {
   /** Add one frame's steps. O(stepCount). */
   push(steps: FrameSteps): void {
     const slotIndex = this.frames % this.capacity;
+    if (steps.sums) {
+      this.pushSums(steps.sums, slotIndex);
+      return;
+    }
     const n = steps.stepCount;
     let sumSquares = 0;
     let sumProducts = 0;
@@ -141,6 +145,26 @@ export class StepCovarianceRing {
     this.sqCount[slotIndex] = valid >= 2 ? 2 * valid : 0;
     this.prod[slotIndex] = sumProducts;
     this.prodCount[slotIndex] = 2 * pairs;
+    this.statistic[slotIndex] = residualSum;
+    this.shape[slotIndex] = valid >= 2 ? valid - 1 : 0;
+    this.lastStatistic = residualSum;
+    this.lastShape = valid >= 2 ? valid - 1 : 0;
+    this.frames++;
+  }
+
+  /**
+   * The same frame from the pipeline's step sums (FrameSteps.sums), O(1): its residuals are about
+   * the frame's mean step, and its residual pairs only those whose previous step was made on a
+   * frame of at least 2 steps, as in the loop above (no per-track state is kept on this path).
+   */
+  private pushSums(sums: StepSums, slotIndex: number): void {
+    const valid = sums.steps;
+    const factor = valid >= 2 ? valid / (valid - 1) : 0;
+    const residualSum = valid >= 2 ? sums.residualSquares : 0;
+    this.sq[slotIndex] = residualSum * factor;
+    this.sqCount[slotIndex] = valid >= 2 ? 2 * valid : 0;
+    this.prod[slotIndex] = valid >= 2 ? sums.residualProducts * factor : 0;
+    this.prodCount[slotIndex] = valid >= 2 ? 2 * sums.residualPairs : 0;
     this.statistic[slotIndex] = residualSum;
     this.shape[slotIndex] = valid >= 2 ? valid - 1 : 0;
     this.lastStatistic = residualSum;

@@ -283,7 +283,8 @@ export class TemperatureDetector implements Detector<TemperatureSummary> {
     const out: Condition[] = [];
     this.frameInterval = steps.frameInterval;
     this.currentBlur = context.blur;
-    for (let k = 0; k < steps.stepCount; k++) {
+    // (the pipeline's frames, which carry sums, have finite steps only)
+    for (let k = 0; k < (steps.sums ? 0 : steps.stepCount); k++) {
       if (!Number.isFinite(steps.dx[k]) || !Number.isFinite(steps.dy[k])) this.skippedSteps++;
     }
     this.ring.push(steps);

@@ -81,8 +81,13 @@ export interface StepSums {
   /** Steps with a previous step, and Σ(dx·dx₋₁ + dy·dy₋₁) over them. */
   pairs: number;
   products: number;
-  /** Σ(rx² + ry²). */
+  /** Σdx and Σdy (the frame's mean step is these over `steps`). */
+  sumX: number;
+  sumY: number;
+  /** Σ(rx² + ry²), and its parts Σrx² and Σry². */
   residualSquares: number;
+  residualSquaresX: number;
+  residualSquaresY: number;
   /**
    * Steps with a previous step made on a frame of at least 2 steps (a residual about a mean of
    * one step is 0 by construction), and Σ(rx·rx₋₁ + ry·ry₋₁) over them.

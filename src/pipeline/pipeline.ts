@@ -355,7 +355,7 @@ export class Pipeline {
       endedX: new Float64Array(capacity),
       endedY: new Float64Array(capacity),
       field: this.fieldBox,
-      sums: { steps: 0, squares: 0, pairs: 0, products: 0, residualSquares: 0, residualPairs: 0, residualProducts: 0 },
+      sums: { steps: 0, squares: 0, pairs: 0, products: 0, sumX: 0, sumY: 0, residualSquares: 0, residualSquaresX: 0, residualSquaresY: 0, residualPairs: 0, residualProducts: 0 },
     };
     this.intensityScratch = new Float64Array(capacity);
   }
@@ -665,7 +665,11 @@ export class Pipeline {
     sums.squares = frameCve[CVE_SUM_SQUARES] + frameCve[cy + CVE_SUM_SQUARES];
     sums.pairs = frameCve[CVE_PAIRS];
     sums.products = frameCve[CVE_SUM_PRODUCTS] + frameCve[cy + CVE_SUM_PRODUCTS];
-    sums.residualSquares = frameCve[CVE_SUM_SQUARES_CORRECTED] + frameCve[cy + CVE_SUM_SQUARES_CORRECTED];
+    sums.sumX = frameCve[CVE_SUM];
+    sums.sumY = frameCve[cy + CVE_SUM];
+    sums.residualSquaresX = frameCve[CVE_SUM_SQUARES_CORRECTED];
+    sums.residualSquaresY = frameCve[cy + CVE_SUM_SQUARES_CORRECTED];
+    sums.residualSquares = sums.residualSquaresX + sums.residualSquaresY;
     // the previous steps were all made into slot − 1: residuals there are about a mean of ≥ 2 steps or not
     const residualPairsCount = this.stepsSlot === slot - 1 && this.stepsInSlot >= 2;
     sums.residualPairs = residualPairsCount ? frameCve[CVE_PAIRS] : 0;

@@ -42,13 +42,17 @@ class DefinitionSums {
     for (let s = 0; s < n; s++) { mx += steps.dx[s]; my += steps.dy[s]; }
     mx /= Math.max(1, n);
     my /= Math.max(1, n);
-    const sums: StepSums = { steps: n, squares: 0, pairs: 0, products: 0, residualSquares: 0, residualPairs: 0, residualProducts: 0 };
+    const sums: StepSums = { steps: n, squares: 0, pairs: 0, products: 0, sumX: 0, sumY: 0, residualSquares: 0, residualSquaresX: 0, residualSquaresY: 0, residualPairs: 0, residualProducts: 0 };
     const residualPairsCount = this.lastStepSlot === steps.slot - 1 && this.lastStepCount >= 2;
     for (let s = 0; s < n; s++) {
       const id = steps.trackId[steps.stepParticle[s]];
       const dx = steps.dx[s], dy = steps.dy[s], rx = dx - mx, ry = dy - my;
       sums.squares += dx * dx + dy * dy;
+      sums.sumX += dx;
+      sums.sumY += dy;
       sums.residualSquares += rx * rx + ry * ry;
+      sums.residualSquaresX += rx * rx;
+      sums.residualSquaresY += ry * ry;
       const before = this.previous.get(id);
       if (before && before.slot === steps.slot - 1) {
         sums.pairs++;
@@ -96,7 +100,7 @@ describe('FrameSteps.sums', () => {
         expect(got.steps).toBe(expected.steps);
         expect(got.pairs).toBe(expected.pairs);
         expect(got.residualPairs).toBe(expected.residualPairs);
-        for (const key of ['squares', 'products', 'residualSquares', 'residualProducts'] as const) {
+        for (const key of ['squares', 'products', 'sumX', 'sumY', 'residualSquares', 'residualSquaresX', 'residualSquaresY', 'residualProducts'] as const) {
           expect(Math.abs(got[key] - expected[key])).toBeLessThanOrEqual(1e-12 * Math.max(1, Math.abs(expected[key])));
         }
         if (expected.pairs > 0 && expected.residualPairs === 0) residualPairsSkipped = true;
@@ -111,16 +115,23 @@ describe('FrameSteps.sums', () => {
     expect(residualPairsSkipped).toBe(true); // the frame after the one-step frame was seen
   });
 
-  it('leaves the noise and temperature detectors deciding exactly as when they form the sums themselves', () => {
+  it('leaves the noise, temperature, drift and vibration detectors deciding exactly as when they form the sums themselves', () => {
     const withoutSums = (detector: Detector): Detector => ({
       name: `${detector.name}-own`,
       push: (steps, context) => detector.push({ ...steps, sums: undefined }, context),
       summary: () => detector.summary(),
     });
-    const pick = (options: ResolvedPipelineOptions) => createDetectors(options).filter((d) => d.name === 'noise' || d.name === 'temperature');
+    const names = ['noise', 'temperature', 'drift', 'vibration'];
+    const pick = (options: ResolvedPipelineOptions) => createDetectors(options).filter((d) => names.includes(d.name));
     const conditions: Record<string, string[]> = {};
-    const detectors = (options: ResolvedPipelineOptions): Detector[] =>
-      [...pick(options), ...pick(options).map(withoutSums)].map((d) => ({
+    const made: Detector[] = [];
+    const inner: Detector[] = []; // the detectors themselves: those given the sums first
+    const detectors = (options: ResolvedPipelineOptions): Detector[] => {
+      const first = pick(options);
+      const second = pick(options);
+      inner.push(...first, ...second);
+      made.push(...first, ...second.map(withoutSums));
+      return made.map((d) => ({
         name: d.name,
         push: (steps, context) => {
           const raised = d.push(steps, context);
@@ -129,6 +140,7 @@ describe('FrameSteps.sums', () => {
         },
         summary: () => d.summary(),
       }));
+    };
     // noise blocks of 100 frames and a short temperature burn-in, so that both decide within the run
     const pipeline = new Pipeline(
       { frameInterval: 0.02, exposure: 0, radius: 0.5, temperature: 22, detectors: { noise: { blockFrames: 100 }, temperature: { burnInSteps: 5000 } } },
@@ -136,12 +148,21 @@ describe('FrameSteps.sums', () => {
       refreshContext,
     );
     for (const frame of awkwardFrames()) pipeline.push(frame);
-    const summaries = pipeline.report().detectors as Record<string, Record<string, unknown>>;
+    const summaries = Object.fromEntries(made.map((d) => [d.name, d.summary() as Record<string, unknown>]));
     expect((summaries.noise.blocks as number)).toBeGreaterThan(5);
-    expectClose(summaries.noise, summaries['noise-own'], 'noise');
-    expectClose(summaries.temperature, summaries['temperature-own'], 'temperature');
-    expect(conditions.noise ?? []).toEqual(conditions['noise-own'] ?? []);
-    expect(conditions.temperature ?? []).toEqual(conditions['temperature-own'] ?? []);
+    expect(((summaries.drift.path as { t: number[] }).t.length)).toBeGreaterThan(10);
+    expect(conditions.drift?.length).toBeGreaterThan(0); // the 0.36 µm/s drift was reported
+    // the vibration detector's per-frame mean-step record (for Lomb–Scargle when frames are missing) is not in its summary
+    type MeanStepRecord = { lsX: Float64Array; lsY: Float64Array; lsScale: Float64Array; lsCount: number };
+    const given = inner.find((d) => d.name === 'vibration') as unknown as MeanStepRecord;
+    const own = inner.find((d) => d.name === 'vibration' && d !== (given as unknown)) as unknown as MeanStepRecord;
+    expect(given.lsCount).toBeGreaterThan(100);
+    expect(own.lsCount).toBe(given.lsCount);
+    for (const key of ['lsX', 'lsY', 'lsScale'] as const) expectClose(Array.from(given[key]), Array.from(own[key]), key);
+    for (const name of names) {
+      expectClose(summaries[name], summaries[`${name}-own`], name);
+      expect(conditions[name] ?? [], name).toEqual(conditions[`${name}-own`] ?? []);
+    }
   });
 
   it('gives the temperature detector\'s step ring the same sums over any run of frames as the ring forms itself', () => {

@@ -250,12 +250,21 @@ export class DriftDetector implements Detector<DriftSummary> {
     this.frames++;
     const dx = this.bufDx, dy = this.bufDy;
     let mx = 0, my = 0;
-    for (let i = 0; i < n; i++) { mx += dx[i]; my += dy[i]; }
-    mx /= n; my /= n;
     let ssx = 0, ssy = 0;
-    for (let i = 0; i < n; i++) {
-      ssx += (dx[i] - mx) * (dx[i] - mx);
-      ssy += (dy[i] - my) * (dy[i] - my);
+    const sums = steps.sums;
+    if (sums && n === sums.steps) {
+      // every step was gathered (finite, no fiducial list): the pipeline's sums are these
+      mx = sums.sumX / n;
+      my = sums.sumY / n;
+      ssx = sums.residualSquaresX;
+      ssy = sums.residualSquaresY;
+    } else {
+      for (let i = 0; i < n; i++) { mx += dx[i]; my += dy[i]; }
+      mx /= n; my /= n;
+      for (let i = 0; i < n; i++) {
+        ssx += (dx[i] - mx) * (dx[i] - mx);
+        ssy += (dy[i] - my) * (dy[i] - my);
+      }
     }
     const s2x = ssx / (n - 1);
     const s2y = ssy / (n - 1);

@@ -334,19 +334,31 @@ export class VibrationDetector implements Detector<VibrationSummary> {
   private recordMeanStep(steps: FrameSteps): void {
     const n = steps.stepCount;
     if (steps.slotGap !== 1 || n < this.options.minParticles) return;
+    const sums = steps.sums;
     let sx = 0;
     let sy = 0;
-    for (let j = 0; j < n; j++) {
-      sx += steps.dx[j];
-      sy += steps.dy[j];
+    if (sums) {
+      sx = sums.sumX;
+      sy = sums.sumY;
+    } else {
+      for (let j = 0; j < n; j++) {
+        sx += steps.dx[j];
+        sy += steps.dy[j];
+      }
     }
     const mx = sx / n;
     const my = sy / n;
     let vx = 0;
     let vy = 0;
-    for (let j = 0; j < n; j++) {
-      vx += (steps.dx[j] - mx) ** 2;
-      vy += (steps.dy[j] - my) ** 2;
+    if (sums) {
+      // the pipeline's residual sums about the same mean
+      vx = sums.residualSquaresX;
+      vy = sums.residualSquaresY;
+    } else {
+      for (let j = 0; j < n; j++) {
+        vx += (steps.dx[j] - mx) ** 2;
+        vy += (steps.dy[j] - my) ** 2;
+      }
     }
     vx /= n - 1;
     vy /= n - 1;

@@ -5,6 +5,8 @@ import type { AlertLevel } from '../src/alerts/condition.js';
 import type { Frame } from '../src/frame.js';
 import type { Alert } from '../src/report.js';
 import type { Tag } from '../src/tag.js';
+import { batchStatements, STORAGE_FAILURE, writeBatchRows, type BatchStatements } from './batchSql.mjs';
+import { BatchWriter } from './batchWriter.js';
 import type { RunListEntry } from './protocol.js';
 
 /** One frame packed for the database: columns as little-endian BLOBs (copies, safe to keep). */
@@ -70,8 +72,6 @@ CREATE TABLE IF NOT EXISTS summaries (run TEXT NOT NULL, at TEXT NOT NULL, t REA
   diffusion REAL, low REAL, high REAL, worst TEXT);
 `;
 
-/** SQLite result codes that mean the storage itself failed (sqlite.org/rescode.html). */
-const STORAGE_FAILURE = /^SQLITE_(FULL|READONLY|IOERR|CANTOPEN|CORRUPT|NOTADB|PERM)/;
 
 function blob(values: Float64Array | Uint32Array, count: number): Buffer {
   // Buffer.from(arrayBuffer, offset, length) is a view; the second Buffer.from copies, so the
@@ -89,8 +89,9 @@ function floats(data: Buffer, count: number): Float64Array {
  * The recording: one SQLite database (`<data>/jostle.sqlite`, WAL, synchronous NORMAL) holding
  * every run's metadata, frames (one row per frame, each column a packed little-endian BLOB:
  * float64 for x, y, z, intensity and uint32 for id), temperature log, tags, alerts and periodic
- * summaries. Frames and readings are written in batches, one transaction per batch; with WAL a
- * committed batch survives a killed process.
+ * summaries. Frames and readings are written in batches, one transaction per batch (on a worker
+ * thread, batchWriter.ts, unless `writerThread` is false); with WAL a committed batch survives a
+ * killed process. Every other read and write first waits for the batches already posted.
  *
  * @example
  * const recorder = new Recorder('./jostle-data');
@@ -105,10 +106,19 @@ export class Recorder {
    */
   failure: { code: string; message: string } | undefined;
   private readonly failureListeners: ((failure: { code: string; message: string }) => void)[] = [];
+  /** The thread that writes frame batches (none when read-only or asked for none). */
+  private readonly writer: BatchWriter | undefined;
+  /** The batch statements, prepared when batches are written on this thread. */
+  private batch: BatchStatements | undefined;
 
-  constructor(folder: string, options: { readonly?: boolean } = {}) {
+  /**
+   * `writerThread` (default true): frame batches are written on a worker thread with its own
+   * connection (batchWriter.ts); false writes them on the caller's thread.
+   */
+  constructor(folder: string, options: { readonly?: boolean; writerThread?: boolean } = {}) {
     if (!options.readonly) mkdirSync(folder, { recursive: true });
-    this.db = new Database(join(folder, 'jostle.sqlite'), { readonly: options.readonly === true, fileMustExist: options.readonly === true });
+    const file = join(folder, 'jostle.sqlite');
+    this.db = new Database(file, { readonly: options.readonly === true, fileMustExist: options.readonly === true });
     if (!options.readonly) {
       // 16 KiB pages for a new database (an existing one keeps its own): a frame row is one to
       // a few hundred KiB of BLOBs, and fewer, larger overflow pages make a batch cheaper to write
@@ -118,6 +128,7 @@ export class Recorder {
       this.db.pragma('journal_mode = WAL');
       this.db.pragma('synchronous = NORMAL');
       this.db.exec(SCHEMA);
+      if (options.writerThread !== false) this.writer = new BatchWriter(file, (failure) => this.stopWriting(failure));
     }
     const db = this.db;
     this.statements = {
@@ -126,9 +137,6 @@ export class Recorder {
       insertRun: options.readonly ? undefined : db.prepare(
         'INSERT INTO runs (id, label, settings, state, started) VALUES (?, ?, ?, \'live\', ?) ON CONFLICT(id) DO UPDATE SET state = \'live\', interrupted = 0, final_report = NULL, label = excluded.label, settings = excluded.settings',
       ),
-      frame: options.readonly ? undefined : db.prepare('INSERT OR IGNORE INTO frames (run, idx, t, count, x, y, z, id, intensity) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)'),
-      runFrames: options.readonly ? undefined : db.prepare('UPDATE runs SET frames = frames + ?, bytes = bytes + ?, last_index = max(coalesce(last_index, -1), ?) WHERE id = ?'),
-      temperature: options.readonly ? undefined : db.prepare('INSERT INTO temperatures (run, t, celsius) VALUES (?, ?, ?)'),
       tag: options.readonly ? undefined : db.prepare('INSERT INTO tags (run, label, start, end, note) VALUES (?, ?, ?, ?, ?)'),
       alert: options.readonly ? undefined : db.prepare(
         'INSERT INTO alerts (run, id, kind, level, start, end, message, detail) VALUES (?, ?, ?, ?, ?, ?, ?, ?) ON CONFLICT(run, id) DO UPDATE SET level = excluded.level, end = excluded.end, message = excluded.message, detail = excluded.detail',
@@ -161,8 +169,10 @@ export class Recorder {
    */
   limitPages(extraPages: number): void {
     if (!(Number.isInteger(extraPages) && extraPages >= 0)) throw new RangeError('Recorder.limitPages requires an integer extraPages >= 0');
+    this.writer?.drain();
     const pages = Number(this.db.pragma('page_count', { simple: true }));
     this.db.pragma(`max_page_count = ${pages + extraPages}`);
+    this.writer?.limitPages(extraPages);
   }
 
   /**
@@ -171,24 +181,38 @@ export class Recorder {
    * error (a bug) is thrown as before.
    */
   private write(action: () => unknown): void {
+    this.writer?.drain();
     if (this.failure) return;
     try {
       action();
     } catch (error) {
       const code = (error as { code?: unknown }).code;
       if (typeof code !== 'string' || !STORAGE_FAILURE.test(code)) throw error;
-      this.failure = { code, message: (error as Error).message };
-      for (const listener of this.failureListeners) listener(this.failure);
+      this.stopWriting({ code, message: (error as Error).message });
     }
+  }
+
+  /** Writing stops for good (from this thread's writes or the writer thread's). */
+  private stopWriting(failure: { code: string; message: string }): void {
+    if (this.failure) return;
+    this.failure = failure;
+    for (const listener of this.failureListeners) listener(failure);
+  }
+
+  /** Waits for the frame batches already posted (so that reads see them). */
+  private settle(): void {
+    this.writer?.drain();
   }
 
   /** Marks runs left live by a previous process as ended and interrupted; returns their number. */
   markInterrupted(): number {
+    this.settle();
     return this.statements.interrupt!.run().changes;
   }
 
   /** The stored metadata of a run, or undefined. */
   run(id: string): RunRecord | undefined {
+    this.settle();
     const row = this.statements.run.get(id) as Record<string, unknown> | undefined;
     if (!row) return undefined;
     return {
@@ -208,6 +232,7 @@ export class Recorder {
 
   /** Every recorded run, oldest first (the rows of `GET /api/runs`). */
   listRuns(): RunListEntry[] {
+    this.settle();
     return this.statements.list.all() as RunListEntry[];
   }
 
@@ -239,23 +264,13 @@ export class Recorder {
   /** Writes one batch of frames and readings in a single transaction. */
   writeBatch(rows: readonly RecordRow[]): void {
     if (rows.length === 0) return;
-    const s = this.statements;
-    this.write(() => this.db.transaction(() => {
-      const perRun = new Map<string, { frames: number; bytes: number; last: number }>();
-      for (const row of rows) {
-        if (row.kind === 'temperature') {
-          s.temperature!.run(row.run, row.t, row.celsius);
-          continue;
-        }
-        const written = s.frame!.run(row.run, row.index, row.t, row.count, row.x, row.y, row.z, row.id, row.intensity).changes;
-        const entry = perRun.get(row.run) ?? { frames: 0, bytes: 0, last: -1 };
-        entry.frames += written;
-        entry.bytes += written * row.bytes;
-        entry.last = Math.max(entry.last, row.index);
-        perRun.set(row.run, entry);
-      }
-      for (const [run, entry] of perRun) s.runFrames!.run(entry.frames, entry.bytes, entry.last, run);
-    })());
+    if (this.writer) {
+      if (!this.failure) this.writer.post(rows);
+      return;
+    }
+    this.batch ??= batchStatements(this.db);
+    const statements = this.batch;
+    this.write(() => writeBatchRows(this.db, statements, rows));
   }
 
   /** Records a tag. */
@@ -284,6 +299,7 @@ export class Recorder {
   *frames(run: string, pageRows = 512): Generator<Frame> {
     let after = -1;
     for (;;) {
+      this.settle();
       const rows = this.statements.framePage.all(run, after, pageRows) as Record<string, unknown>[];
       for (const row of rows) {
         const count = row.count as number;
@@ -304,21 +320,25 @@ export class Recorder {
 
   /** The recorded temperature log of a run, in time order. */
   temperatures(run: string): { t: number; celsius: number }[] {
+    this.settle();
     return this.statements.temperatures.all(run) as { t: number; celsius: number }[];
   }
 
   /** The recorded tags of a run, in arrival order. */
   tags(run: string): Tag[] {
+    this.settle();
     return this.statements.tags.all(run) as Tag[];
   }
 
   /** The recorded alerts of a run. */
   alerts(run: string): Alert[] {
+    this.settle();
     return (this.statements.alerts.all(run) as (Omit<Alert, 'detail'> & { detail: string })[]).map((a) => ({ ...a, detail: JSON.parse(a.detail) as Record<string, unknown> }));
   }
 
   /** Closes the database (pending WAL content is checkpointed by SQLite). */
   close(): void {
+    this.writer?.close();
     this.db.close();
   }
 }

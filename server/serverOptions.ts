@@ -37,6 +37,8 @@ export interface ServerOptions {
   summaryHz?: number;
   /** Recording batches are written at least this often, ms (default 250): the most a hard kill loses. */
   flushMs?: number;
+  /** Frame batches are written on a worker thread (default true); false writes them on the event loop. */
+  recordingThread?: boolean;
   /** A periodic summary row is recorded this often per run, ms (default 10 000). */
   summaryRecordMs?: number;
   /** Frames kept for the position trails (default 8). */
@@ -68,6 +70,7 @@ export const SERVER_DEFAULTS = {
   heartbeatMs: 15_000,
   summaryHz: 10,
   flushMs: 250,
+  recordingThread: true,
   summaryRecordMs: 10_000,
   trailFrames: 8,
 } as const;
@@ -108,6 +111,7 @@ export function resolveServerOptions(options: ServerOptions = {}): ResolvedServe
   integer('flushMs', 1, 1000);
   integer('summaryRecordMs', 10);
   integer('trailFrames', 1, 100);
+  if (typeof merged.recordingThread !== 'boolean') throw new RangeError('server option recordingThread requires true or false');
   if (!(Number(merged.summaryHz) > 0 && Number(merged.summaryHz) <= 10)) throw new RangeError('server option summaryHz requires a value in (0, 10]');
   if (typeof merged.host !== 'string' || merged.host === '') throw new RangeError('server option host requires a host name or address');
   if (!isLoopback(merged.host) && !merged.allowRemote) {

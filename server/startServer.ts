@@ -59,7 +59,7 @@ export async function startServer(options: ServerOptions = {}, scheduler: Schedu
   const o = resolveServerOptions(options);
   if (!isLoopback(o.host)) o.log(`jostle: warning: listening on ${o.host}, reachable from other machines; keep the token secret`);
   const token = resolveToken(o.token, o.data);
-  const recorder = new Recorder(o.data);
+  const recorder = new Recorder(o.data, { writerThread: o.recordingThread });
   const interrupted = recorder.markInterrupted();
   if (interrupted > 0) o.log(`jostle: ${interrupted} run(s) were interrupted by the previous stop; a rig can resume them`);
   const registry = new RunRegistry(recorder, o, scheduler);

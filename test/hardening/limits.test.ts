@@ -41,6 +41,8 @@ describe('resolveServerOptions', () => {
       for (const value of values) expect(() => resolveServerOptions({ [name]: value, log: () => undefined })).toThrow(new RegExp(`server option ${name}`));
     }
     expect(() => resolveServerOptions({ summaryHz: 11 })).toThrow(/summaryHz/);
+    expect(() => resolveServerOptions({ recordingThread: 'yes' as unknown as boolean })).toThrow(/recordingThread/);
+    expect(resolveServerOptions({}).recordingThread).toBe(true);
     expect(() => resolveServerOptions({ token: 'short' })).toThrow(/token/);
     for (const host of ['0.0.0.0', '::', '192.168.1.20', 'lab-pc.local']) expect(() => resolveServerOptions({ host })).toThrow(/allowRemote/);
     for (const host of ['127.0.0.1', '127.1.2.3', '::1', 'localhost']) expect(resolveServerOptions({ host, log: () => undefined }).host).toBe(host);

@@ -2,7 +2,8 @@
 // (tools/bench/benchRig.ts) → ws → decode → pipeline → recording on → one dashboard watching,
 // both cores (the rig included). Reports centroids/s over the run, and the queue: frames sent
 // by the rig minus frames the pipeline has taken, sampled every second (flat = keeping up).
-// Run: npx tsx tools/bench/endToEnd.ts [msgpack|json] [particles=1000] [seconds=20]
+// Run: npx tsx tools/bench/endToEnd.ts [msgpack|json] [particles=1000] [seconds=20] [thread|event-loop]
+// (the last: where the recording's batches are written, the server's `recordingThread` option)
 import { spawn } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -24,9 +25,9 @@ export interface EndToEndResult {
   recordedFrames: number | undefined;
 }
 
-export async function endToEnd(encoding: 'msgpack' | 'json', particles = 1000, seconds = 20): Promise<EndToEndResult> {
+export async function endToEnd(encoding: 'msgpack' | 'json', particles = 1000, seconds = 20, recordingThread = true): Promise<EndToEndResult> {
   const data = mkdtempSync(join(tmpdir(), 'jostle-bench-'));
-  const server = await startServer({ port: 0, host: '127.0.0.1', data, token: 'bench-token-123', log: () => undefined, quotaBytes: 64 * 2 ** 30 });
+  const server = await startServer({ port: 0, host: '127.0.0.1', data, token: 'bench-token-123', log: () => undefined, quotaBytes: 64 * 2 ** 30, recordingThread });
   try {
     const root = join(import.meta.dirname, '..', '..');
     const child = spawn(process.execPath, ['--import', 'tsx', 'tools/bench/benchRig.ts', `ws://127.0.0.1:${server.port}/rig`, server.token as string, encoding, String(particles), String(seconds)], {
@@ -86,6 +87,6 @@ export async function endToEnd(encoding: 'msgpack' | 'json', particles = 1000, s
 
 if (import.meta.url === `file://${process.argv[1]}`) {
   const encoding = process.argv[2] === 'json' ? 'json' : 'msgpack';
-  const result = await endToEnd(encoding, Number(process.argv[3] ?? 1000), Number(process.argv[4] ?? 20));
+  const result = await endToEnd(encoding, Number(process.argv[3] ?? 1000), Number(process.argv[4] ?? 20), process.argv[5] !== 'event-loop');
   console.log(JSON.stringify(result));
 }

@@ -9,6 +9,8 @@ export interface WriterFailure {
 
 /** How long `drain` waits for the writer thread before giving up on it, ms. */
 const DRAIN_LIMIT_MS = 60_000;
+/** Batches posted and not yet written beyond which `post` waits (back-pressure, as before the thread). */
+export const MAX_PENDING_BATCHES = 4;
 
 /**
  * The recording's frame batches written on a worker thread (batchWriterWorker.mjs, its own
@@ -23,9 +25,11 @@ const DRAIN_LIMIT_MS = 60_000;
  * at once by `drain()` and by each `post()` (receiveMessageOnPort), or else on the next turn of
  * the event loop; from then on batches are dropped, as the recorder's own writes are.
  *
- * Memory: the posted batches not yet written (the thread writes a batch in a few ms; the queue
- * is the rows of at most a few flush intervals). A killed process loses them as it loses the
- * rows still in the live run's buffer: only committed batches survive, as before.
+ * Memory: at most `MAX_PENDING_BATCHES` (4) posted batches wait for the thread; beyond that
+ * `post` blocks until one is written, so a slow disk slows the frame path (and, through the
+ * sockets, the rig) as the event loop's own writes did, instead of filling memory. A killed
+ * process loses the waiting batches as it loses the rows still in the live run's buffer: only
+ * committed batches survive, as before.
  *
  * @example
  * const writer = new BatchWriter('/data/jostle.sqlite', (f) => console.log(f.code));
@@ -57,10 +61,17 @@ export class BatchWriter {
     });
   }
 
-  /** Queues one batch (the rows are copied to the thread). */
+  /** Batches posted and not yet written. */
+  get pending(): number {
+    return this.posted - Atomics.load(this.done, 0);
+  }
+
+  /** Queues one batch (the rows are copied to the thread); waits while `MAX_PENDING_BATCHES` are unwritten. */
   post(rows: readonly RecordRow[]): void {
     this.poll();
     if (this.failure || rows.length === 0) return;
+    if (this.pending >= MAX_PENDING_BATCHES) this.drain(MAX_PENDING_BATCHES - 1);
+    if (this.failure) return;
     this.posted++;
     this.worker.postMessage({ type: 'batch', rows });
   }
@@ -72,12 +83,12 @@ export class BatchWriter {
     this.drain();
   }
 
-  /** Blocks until every posted batch is written (or the thread failed or stopped). */
-  drain(): void {
+  /** Blocks until at most `left` posted batches are unwritten (default 0: all written), or the thread failed or stopped. */
+  drain(left = 0): void {
     const started = Date.now();
     for (;;) {
       const written = Atomics.load(this.done, 0);
-      if (written >= this.posted || this.exited) break;
+      if (written >= this.posted - left || this.exited) break;
       if (Date.now() - started > DRAIN_LIMIT_MS) {
         this.received({ type: 'failure', code: 'WRITER_TIMEOUT', message: `the recording thread wrote nothing for ${DRAIN_LIMIT_MS / 1000} s` });
         break;

@@ -72,7 +72,6 @@ CREATE TABLE IF NOT EXISTS summaries (run TEXT NOT NULL, at TEXT NOT NULL, t REA
   diffusion REAL, low REAL, high REAL, worst TEXT);
 `;
 
-
 function blob(values: Float64Array | Uint32Array, count: number): Buffer {
   // Buffer.from(arrayBuffer, offset, length) is a view; the second Buffer.from copies, so the
   // row stays valid when the connection reuses its frame buffers for the next message.
@@ -261,7 +260,11 @@ export class Recorder {
     return row;
   }
 
-  /** Writes one batch of frames and readings in a single transaction. */
+  /**
+   * Writes one batch of frames and readings in a single transaction: posted to the writer thread
+   * (which reports a storage failure, or any other error, as a failure that stops the recording),
+   * or written here.
+   */
   writeBatch(rows: readonly RecordRow[]): void {
     if (rows.length === 0) return;
     if (this.writer) {

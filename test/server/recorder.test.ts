@@ -3,6 +3,7 @@ import { mkdtemp, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterEach, describe, expect, it } from 'vitest';
+import { BatchWriter, MAX_PENDING_BATCHES } from '../../server/batchWriter.js';
 import { Recorder, type RecordRow } from '../../server/recorder.js';
 import type { Frame } from '../../src/frame.js';
 import { Random } from '../../src/stats/random.js';
@@ -112,5 +113,25 @@ describe('Recorder', () => {
     expect([...recorder.frames('c')].length).toBe(20);
     expect(recorder.run('c2')?.frames ?? 0).toBeLessThan(20);
     recorder.close();
+  });
+
+  it('keeps at most MAX_PENDING_BATCHES batches waiting for the writer thread: posting more waits (back-pressure, bounded memory)', async () => {
+    const data = await folder();
+    const setup = new Recorder(data, { writerThread: false });
+    setup.openRun('d', '', '{}', '2026-12-02T00:00:00Z');
+    const writer = new BatchWriter(join(data, 'jostle.sqlite'), () => undefined);
+    const all = frames(60, 5000, 9);
+    let most = 0;
+    for (let i = 0; i < all.length; i += 2) {
+      writer.post(all.slice(i, i + 2).map((f) => setup.frameRow('d', f)));
+      most = Math.max(most, writer.pending);
+    }
+    expect(most).toBeGreaterThan(0);
+    expect(most).toBeLessThanOrEqual(MAX_PENDING_BATCHES);
+    writer.drain();
+    expect(writer.pending).toBe(0);
+    expect(setup.run('d')?.frames).toBe(60);
+    writer.close();
+    setup.close();
   });
 });

@@ -7,7 +7,8 @@ import type { AlertMessage } from './protocol.js';
  * run goes on being analysed in memory, and a `recording` alert at `stop` is raised through the
  * run's own alert engine and sent to its rig and dashboards (CONTRACTS §3 `recording`). Called
  * by the run registry when the {@link Recorder} reports a failure; idempotent per run (the alert
- * engine keeps one alert per key). O(dashboards) plus one report for the data time.
+ * engine keeps one alert per key). The dashboards also get a fresh state (recording off) at once.
+ * O(dashboards) plus two reports (the data time, the state).
  *
  * @param run the run (state live)
  * @param code the storage error code, e.g. `SQLITE_FULL`
@@ -32,5 +33,11 @@ export function stopRecording(run: LiveRun, code: string): void {
     const message: AlertMessage = { type: 'alert', run: run.id, change: change.change, ...change.alert };
     run.rigSocket?.sendAlert(message);
     for (const dashboard of run.dashboards) dashboard.send(message);
+  }
+  // The dashboards' state shows the recording off at once, not only with the next frame's update
+  // (the failure may be learned after the last frame, from the recording thread).
+  if (run.dashboards.size > 0) {
+    const state = run.runState();
+    for (const dashboard of run.dashboards) dashboard.update(state);
   }
 }

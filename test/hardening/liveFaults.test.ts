@@ -1,5 +1,6 @@
 import { afterEach, describe, expect, it } from 'vitest';
 import { WebSocket } from 'ws';
+import { stopRecording } from '../../server/stopRecording.js';
 import { RigClient } from '../../tools/rig/rigClient.js';
 import { brownianFrames } from '../helpers/brownianFrames.js';
 import { collect, testServer, until, type Collector } from '../server/serverHarness.js';
@@ -69,6 +70,26 @@ describe('a full disk', () => {
     expect(first.input.frames).toBe(300);
     expect(rig.errors).toEqual([]);
     await Promise.all([rig.close(), second.close(), dashboard.close()]);
+  }, 30_000);
+});
+
+describe('a full disk found after the last frame', () => {
+  it('still shows the dashboard the recording off at once (the recording thread may report the failure after the last frame)', async () => {
+    const s = await server({ flushMs: 20 });
+    const frames = brownianFrames({ seed: 4, particles: 20, frames: 60, frameInterval: 0.05, diffusion: 0.4, sigma: 0.02, field: 80 });
+    const rig = await RigClient.connect(`${s.ws}/rig`, { token: TOKEN });
+    await rig.open({ type: 'run', run: 'late-disk', frameInterval: 0.05 });
+    const dashboard = await collect(`${s.ws}/watch?run=late-disk`, auth);
+    for (const f of frames) await rig.frame(f);
+    const run = s.registry.get('late-disk')!;
+    await until(() => run.pipeline.counts().frames === 60);
+    await new Promise((r) => setTimeout(r, 300)); // the last frame's updates are out
+    const before = dashboard.messages.length;
+    stopRecording(run, 'SQLITE_FULL'); // as the registry does when the failure arrives; no frame follows
+    await dashboard.next((m) => m.type === 'alert' && m.kind === 'recording' && m.level === 'stop');
+    const update = await dashboard.next((m) => m.type === 'update' && (m.counters as { recording: boolean }).recording === false);
+    expect(dashboard.messages.indexOf(update)).toBeGreaterThanOrEqual(before);
+    await Promise.all([rig.close(), dashboard.close()]);
   }, 30_000);
 });
 

@@ -671,9 +671,9 @@ export class Pipeline {
     sums.residualSquaresY = frameCve[cy + CVE_SUM_SQUARES_CORRECTED];
     sums.residualSquares = sums.residualSquaresX + sums.residualSquaresY;
     // the previous steps were all made into slot − 1: residuals there are about a mean of ≥ 2 steps or not
-    const residualPairsCount = this.stepsSlot === slot - 1 && this.stepsInSlot >= 2;
-    sums.residualPairs = residualPairsCount ? frameCve[CVE_PAIRS] : 0;
-    sums.residualProducts = residualPairsCount ? frameCve[CVE_SUM_PRODUCTS_CORRECTED] + frameCve[cy + CVE_SUM_PRODUCTS_CORRECTED] : 0;
+    const previousResidualsUsable = this.stepsSlot === slot - 1 && this.stepsInSlot >= 2;
+    sums.residualPairs = previousResidualsUsable ? frameCve[CVE_PAIRS] : 0;
+    sums.residualProducts = previousResidualsUsable ? frameCve[CVE_SUM_PRODUCTS_CORRECTED] + frameCve[cy + CVE_SUM_PRODUCTS_CORRECTED] : 0;
     if (stepCount > 0) {
       this.stepsSlot = slot;
       this.stepsInSlot = stepCount;

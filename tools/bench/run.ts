@@ -76,7 +76,7 @@ if (!skipLive) {
   // other core), so a JSON rig's centroid costs the packed one's plus its JSON decode:
   // ratio ≈ 1 + R_packed / R_json-decode, with R_json-decode from the ingest table above.
   const full = byName(pipeline, 'pipeline, ids given, 1000');
-  console.log(`\nceilings: end to end is ${(packed.centroidsPerSecond / full.median).toFixed(2)}× the pipeline-only figure of this run; the JSON ratio on a serial server is at most ≈ 1 + ${packed.centroidsPerSecond.toExponential(2)} / ${jsonIngest.toExponential(2)} (JSON decode) = ${(1 + packed.centroidsPerSecond / jsonIngest).toFixed(2)}, measured ${ratio.toFixed(2)}`);
+  console.log(`\nceilings: end to end is ${(packed.centroidsPerSecond / full.median).toFixed(2)}× the pipeline-only figure of this run; the JSON ratio on a serial server is about 1 + ${packed.centroidsPerSecond.toExponential(2)} / ${jsonIngest.toExponential(2)} (JSON decode) = ${(1 + packed.centroidsPerSecond / jsonIngest).toFixed(2)}, measured ${ratio.toFixed(2)}`);
   verdict('end to end, msgpack bins, 1,000 particles', `${packed.centroidsPerSecond.toExponential(2)} centroids/s, ${ratio.toFixed(1)}× a JSON rig`, '≥ 2×10⁶/s for 60 s, ≥ 2× JSON', packed.centroidsPerSecond >= 2e6 && ratio >= 2);
 
   console.log('\n## Latency under load (1,000 particles × 100 frames/s, recording on, one dashboard)\n');

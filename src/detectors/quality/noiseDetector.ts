@@ -164,7 +164,9 @@ export class NoiseDetector implements Detector<NoiseSummary> {
       this.products[batch] += sums.products;
       this.productCount[batch] += 2 * sums.pairs;
     }
-    for (let i = 0; i < (sums ? 0 : steps.stepCount); i++) {
+    // a frame without them (hand-made) forms them here, with each track's last step
+    const ownSteps = sums ? 0 : steps.stepCount;
+    for (let i = 0; i < ownSteps; i++) {
       const a = steps.dx[i];
       const b = steps.dy[i];
       if (!Number.isFinite(a) || !Number.isFinite(b)) continue;

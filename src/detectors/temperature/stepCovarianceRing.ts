@@ -158,17 +158,18 @@ export class StepCovarianceRing {
    * frame of at least 2 steps, as in the loop above (no per-track state is kept on this path).
    */
   private pushSums(sums: StepSums, slotIndex: number): void {
-    const valid = sums.steps;
-    const factor = valid >= 2 ? valid / (valid - 1) : 0;
-    const residualSum = valid >= 2 ? sums.residualSquares : 0;
+    // a frame of fewer than 2 steps is recorded with zero counts, as in the loop above
+    const valid = sums.steps >= 2 ? sums.steps : 0;
+    const factor = valid > 0 ? valid / (valid - 1) : 0;
+    const residualSum = valid > 0 ? sums.residualSquares : 0;
     this.sq[slotIndex] = residualSum * factor;
-    this.sqCount[slotIndex] = valid >= 2 ? 2 * valid : 0;
-    this.prod[slotIndex] = valid >= 2 ? sums.residualProducts * factor : 0;
-    this.prodCount[slotIndex] = valid >= 2 ? 2 * sums.residualPairs : 0;
+    this.sqCount[slotIndex] = 2 * valid;
+    this.prod[slotIndex] = valid > 0 ? sums.residualProducts * factor : 0;
+    this.prodCount[slotIndex] = valid > 0 ? 2 * sums.residualPairs : 0;
     this.statistic[slotIndex] = residualSum;
-    this.shape[slotIndex] = valid >= 2 ? valid - 1 : 0;
+    this.shape[slotIndex] = valid > 0 ? valid - 1 : 0;
     this.lastStatistic = residualSum;
-    this.lastShape = valid >= 2 ? valid - 1 : 0;
+    this.lastShape = this.shape[slotIndex];
     this.frames++;
   }
 

@@ -284,7 +284,8 @@ export class TemperatureDetector implements Detector<TemperatureSummary> {
     this.frameInterval = steps.frameInterval;
     this.currentBlur = context.blur;
     // (the pipeline's frames, which carry sums, have finite steps only)
-    for (let k = 0; k < (steps.sums ? 0 : steps.stepCount); k++) {
+    const checkedSteps = steps.sums ? 0 : steps.stepCount;
+    for (let k = 0; k < checkedSteps; k++) {
       if (!Number.isFinite(steps.dx[k]) || !Number.isFinite(steps.dy[k])) this.skippedSteps++;
     }
     this.ring.push(steps);

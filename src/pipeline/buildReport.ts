@@ -68,6 +68,11 @@ export interface ReportInput {
   provenanceOptions?: Record<string, unknown>;
   /** Time the report was generated (ISO string; passed in, src/ has no clock). */
   generated?: string;
+  /**
+   * Leave the per-track table out (`tracks` is then empty): for a live dashboard's frequent
+   * updates, which do not draw it (it is most of a report's size: about 130 bytes of JSON per track).
+   */
+  omitTrackTable?: boolean;
 }
 
 /** How estimates are corrected for common-mode motion in one report. */
@@ -388,7 +393,7 @@ export function buildReport(input: ReportInput): Report {
   report.diffusion.exponent = exponentEstimate(input, layout, global, leaveOneOut, correction, curve, framesPerTrack, jackknifeDf);
 
   // 5. Per-track table.
-  report.tracks = trackRows(input, tracks, correction);
+  report.tracks = input.omitTrackTable ? [] : trackRows(input, tracks, correction);
 
   // 6. Heterogeneity: α2 at the first lag.
   const ng = input.nonGaussianSums;

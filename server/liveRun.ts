@@ -179,20 +179,31 @@ export class LiveRun {
     this.hooks.changed();
   }
 
-  /** The current report (live), or the final one (ended). */
-  report(): Report {
+  /**
+   * The current report (live), or the final one (ended). `omitTrackTable` leaves the per-track
+   * table out of a live report (see `runState`).
+   */
+  report(omitTrackTable = false): Report {
     if (this.state === 'ended' && this.finalReport) return this.finalReport;
     return this.pipeline.report({
       provenanceOptions: { ...this.pipeline.options, pixelSize: this.settings.pixelSize, run: this.id },
       generated: new Date(this.scheduler.now()).toISOString(),
+      omitTrackTable,
     });
   }
 
-  /** The whole state a dashboard draws. Computes the report: O(tracks × lags). */
-  runState(): RunState {
-    const report = this.report();
+  /**
+   * The whole state a dashboard draws. Computes the report: O(tracks × lags). For an update
+   * (`forUpdate`), a live run's report leaves out its per-track table, which the dashboard does
+   * not draw and which is most of the message (about 130 bytes of JSON per track, up to
+   * `maxTrackTable` rows); `tracksOmitted` then says so. Snapshots, the report over HTTP, the
+   * final report and the export keep it.
+   */
+  runState(forUpdate = false): RunState {
+    const omit = forUpdate && !(this.state === 'ended' && this.finalReport);
+    const report = this.report(omit);
     this.appendHistory(report);
-    return {
+    const state: RunState = {
       run: this.id,
       label: this.label,
       state: this.state,
@@ -201,6 +212,8 @@ export class LiveRun {
       positions: this.positions(),
       counters: this.liveCounters(report),
     };
+    if (omit) state.tracksOmitted = true;
+    return state;
   }
 
   /** The run-list row of this run. */
@@ -330,12 +343,12 @@ export class LiveRun {
 
   private broadcastUpdate(): void {
     if (this.dashboards.size === 0) return;
-    const state = this.runState();
+    const state = this.runState(true);
     for (const d of this.dashboards) d.update(state);
   }
 
   private recordSummary(): void {
-    const report = this.report();
+    const report = this.report(true); // a summary row does not need the per-track table
     this.appendHistory(report);
     this.recorder.writeSummary(this.id, new Date(this.scheduler.now()).toISOString(), (report.input.end as number | undefined) ?? null, this.pipeline.counts().frames, report.diffusion.coefficient, this.pipeline.alerts().worst());
   }

@@ -172,6 +172,12 @@ export interface RunState {
   history: RunHistory;
   positions: RunPositions;
   counters: RunCounters;
+  /**
+   * Set (true) on the updates of a live run: `report.tracks` is then empty, the per-track table
+   * being left out of the frequent updates (the dashboard does not draw it, and it is most of the
+   * message). The snapshot, `GET /api/runs/<id>/report` and an ended run's updates carry it.
+   */
+  tracksOmitted?: true;
 }
 
 /** First message to a dashboard of one run. */

@@ -37,7 +37,7 @@ export function stopRecording(run: LiveRun, code: string): void {
   // The dashboards' state shows the recording off at once, not only with the next frame's update
   // (the failure may be learned after the last frame, from the recording thread).
   if (run.dashboards.size > 0) {
-    const state = run.runState();
+    const state = run.runState(true);
     for (const dashboard of run.dashboards) dashboard.update(state);
   }
 }

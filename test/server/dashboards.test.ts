@@ -56,6 +56,18 @@ describe('/watch', () => {
     expect(latest.positions.frames[0].x).toHaveLength(20);
     expect(latest.report.input.frames).toBeGreaterThan(0);
     expect(Array.isArray(latest.history.t)).toBe(true);
+    // updates of a live run leave the per-track table out; a snapshot and the report over HTTP carry it
+    expect(latest.tracksOmitted).toBe(true);
+    expect(latest.report.tracks).toEqual([]);
+    expect(latest.report.input.tracks).toBe(20);
+    const late = await collect(`${server.ws}/watch?run=bench-b&token=${TOKEN}`);
+    const snapshot = (await late.next((m) => m.type === 'snapshot')) as Record<string, any>;
+    expect(snapshot.tracksOmitted).toBeUndefined();
+    expect(snapshot.report.tracks).toHaveLength(20);
+    expect(snapshot.report.tracks.map((row: { id: number }) => row.id).sort((a: number, b: number) => a - b)).toEqual(Array.from(framesB[0].id as Uint32Array).sort((a, b) => a - b));
+    const overHttp = await (await fetch(`${server.http}/api/runs/bench-b/report`, { headers: auth })).json();
+    expect(overHttp.tracks).toHaveLength(20);
+    await late.close();
     const runs = await list.next((m) => m.type === 'runs' && (m.runs as unknown[]).length === 2);
     expect((runs.runs as { id: string }[]).map((r) => r.id).sort()).toEqual(['bench-a', 'bench-b']);
     await rigA.end();

@@ -19,6 +19,7 @@ export { chooseEstimator, type EstimatorChoice } from './chooseEstimator.js';
 export { exposureAveragedPowerLaw } from './exposureAveragedPowerLaw.js';
 export { logLogSlope } from './logLogSlope.js';
 export { anomalousExponent, type AnomalousExponentInput, type AnomalousExponentEstimate } from './anomalousExponent.js';
+export { brentMinimum } from './brentMinimum.js';
 export { nonGaussianParameter, type NonGaussianEstimate } from './nonGaussianParameter.js';
 
 // Intervals

@@ -16,6 +16,9 @@ const quick = process.argv.includes('--quick');
 const skipLive = process.argv.includes('--skip-live');
 const runs = quick ? 3 : 5;
 const liveSeconds = quick ? 10 : 20;
+// the end-to-end target is a rate sustained for 60 s: the msgpack run is that long (the JSON peer's
+// run only gives the ratio, and is kept at liveSeconds)
+const sustainedSeconds = quick ? 10 : 60;
 const verdicts: string[] = [];
 const verdict = (name: string, figure: string, target: string, met: boolean) =>
   verdicts.push(`| ${name} | ${figure} | ${target} | ${met ? 'met' : 'not met'} |`);
@@ -29,10 +32,11 @@ console.log(table(pipeline, pipeline[0]));
 {
   const full = byName(pipeline, 'pipeline, ids given, 1000');
   const ratio = full.ratioToFirst ?? full.median / pipeline[0].median;
-  verdict('pipeline, 1,000 particles, 16 lags, every detector', `${full.median.toExponential(2)} centroids/s, ${(100 * ratio).toFixed(0)} % of the bare kernel`, '≥ 3×10⁶/s and ≥ 40 %', full.median >= 3e6 && ratio >= 0.4);
   // The measured ceiling of that ratio: the same pipeline with no detector at all.
   const core = byName(pipeline, 'pipeline, ids given, no detectors');
   const coreRatio = core.ratioToFirst ?? core.median / pipeline[0].median;
+  verdict('pipeline, 1,000 particles, 16 lags, every detector', `${full.median.toExponential(2)} centroids/s (range ${full.min.toExponential(2)}–${full.max.toExponential(2)})`, '≥ 3×10⁶/s', full.median >= 3e6);
+  verdict('pipeline against the bare MSD kernel', `${(100 * ratio).toFixed(0)} % (no detector: ${(100 * coreRatio).toFixed(0)} %)`, '≥ 40 %', ratio >= 0.4);
   console.log(`\nceiling: with no detector the pipeline runs at ${(100 * coreRatio).toFixed(0)} % of the bare kernel; the detectors take ${(100 * (1 - full.median / core.median)).toFixed(0)} % of the full pipeline's time`);
 }
 
@@ -66,7 +70,7 @@ console.log(`layout: ring ${memory.ringBytes} B + the rest ${memory.otherBytes} 
 
 if (!skipLive) {
   console.log('\n## End to end (rig process → ws loopback → decode → pipeline → recording → dashboard)\n');
-  const packed = await endToEnd('msgpack', 1000, liveSeconds);
+  const packed = await endToEnd('msgpack', 1000, sustainedSeconds);
   const json = await endToEnd('json', 1000, liveSeconds);
   for (const r of [json, packed]) {
     console.log(`${r.encoding}: ${r.centroidsPerSecond.toExponential(2)} centroids/s over ${r.seconds.toFixed(1)} s; queue each second ${JSON.stringify(r.queue)}; ${r.dashboardMessages} dashboard messages; ${r.recordedFrames} frames recorded`);
@@ -77,7 +81,26 @@ if (!skipLive) {
   // ratio ≈ 1 + R_packed / R_json-decode, with R_json-decode from the ingest table above.
   const full = byName(pipeline, 'pipeline, ids given, 1000');
   console.log(`\nceilings: end to end is ${(packed.centroidsPerSecond / full.median).toFixed(2)}× the pipeline-only figure of this run; the JSON ratio on a serial server is about 1 + ${packed.centroidsPerSecond.toExponential(2)} / ${jsonIngest.toExponential(2)} (JSON decode) = ${(1 + packed.centroidsPerSecond / jsonIngest).toFixed(2)}, measured ${ratio.toFixed(2)}`);
-  verdict('end to end, msgpack bins, 1,000 particles', `${packed.centroidsPerSecond.toExponential(2)} centroids/s, ${ratio.toFixed(1)}× a JSON rig`, '≥ 2×10⁶/s for 60 s, ≥ 2× JSON', packed.centroidsPerSecond >= 2e6 && ratio >= 2);
+  // The server runs the pipeline on one thread, so no encoding takes it past the pipeline-only
+  // figure: the JSON ratio is at most R_pipeline-only / R_json-end-to-end.
+  console.log(`ceiling of the JSON ratio: the pipeline-only figure over the JSON rig's end to end, ${full.median.toExponential(2)} / ${json.centroidsPerSecond.toExponential(2)} = ${(full.median / json.centroidsPerSecond).toFixed(2)}`);
+  // "No growing queue": at the end of the sustained run the server is less than one second of frames behind.
+  const tail = packed.queue.slice(-10);
+  const behindSeconds = Math.max(0, ...tail) / packed.framesPerSecond;
+  console.log(`queue over the last 10 s of the ${packed.seconds.toFixed(0)}-s run: at most ${Math.max(0, ...tail)} frames (${behindSeconds.toFixed(2)} s of frames)`);
+  const sustained = packed.seconds >= 0.98 * sustainedSeconds && behindSeconds < 1;
+  verdict(
+    'end to end, msgpack bins, 1,000 particles',
+    `${packed.centroidsPerSecond.toExponential(2)} centroids/s over ${packed.seconds.toFixed(0)} s (${sustained ? 'queue flat' : 'queue growing or run short'})`,
+    '≥ 2×10⁶/s for 60 s, no growing queue',
+    packed.centroidsPerSecond >= 2e6 && sustained && sustainedSeconds >= 60,
+  );
+  verdict(
+    'end to end against a JSON rig',
+    `${ratio.toFixed(2)}× (ceiling in this run ${(full.median / json.centroidsPerSecond).toFixed(2)}×)`,
+    '≥ 2× JSON',
+    ratio >= 2,
+  );
 
   console.log('\n## Latency under load (1,000 particles × 100 frames/s, recording on, one dashboard)\n');
   const latency = await liveLatency(1000, 100, quick ? 20 : 30, 5, 10);

@@ -130,7 +130,9 @@ const AXIS_NAMES = ['x', 'y', 'xy'] as const;
  * would bias the MSD by less than `msdBiasTolerance`, `stop` when the camera-seen amplitude
  * exceeds `stopAmplitudeRatio`·σ, `warn` otherwise. Conditions are keyed per axis
  * (`vibration:x`, `vibration:y`, or `vibration:xy`) plus `vibration:broadband`, reported when
- * their level changes.
+ * their level changes, and an axis's line again at the same level when it has moved: its
+ * frequency by more than one bin, or its amplitude outside the 95 % CI last reported (so the
+ * alert's message and effect follow a line that grows, fades or shifts).
  *
  * Cost per frame O(steps); per segment O(N·L log L); per test O(K·L). Memory O(N·L + K·L).
  *
@@ -153,6 +155,8 @@ export class VibrationDetector implements Detector<VibrationSummary> {
   private method: VibrationSummary['method'];
   private result: FTestResult | undefined;
   private readonly levels: Map<string, AlertLevel | null>;
+  // Per axis key: the frequency (Hz) and amplitude CI (µm) of the line last reported.
+  private readonly reportedLines = new Map<string, { frequency: number; ci95: [number, number] }>();
   private readonly found: VibrationPeak[];
   private current: VibrationPeak[];
   private spectrum: VibrationSummary['spectrum'];
@@ -441,7 +445,7 @@ export class VibrationDetector implements Detector<VibrationSummary> {
     this.current = candidates.map((c) => c.peak);
     for (const c of candidates) this.remember(c.peak);
     const pValue = this.alpha;
-    this.emitAxes(candidates, t, out, pValue, o.axes === 'separate' ? ['x', 'y'] : ['xy'], result.threshold, series);
+    this.emitAxes(candidates, t, out, pValue, o.axes === 'separate' ? ['x', 'y'] : ['xy'], result.threshold, series, df);
     // Broadband common-mode excess: info only (no line, so no MSD figure to judge it by).
     const level: AlertLevel | null = broadband ? 'info' : null;
     if ((this.levels.get('vibration:broadband') ?? null) !== level) {
@@ -547,7 +551,21 @@ export class VibrationDetector implements Detector<VibrationSummary> {
     return { peak, statistic, threshold, bin, lagS };
   }
 
-  /** Emits one condition per axis key when its level changes. */
+  /**
+   * Whether the line now seen on an axis differs from the one last reported there: frequency
+   * moved by more than `binHz`, or amplitude outside the reported 95 % CI.
+   */
+  private lineMoved(key: string, peak: VibrationPeak, binHz: number): boolean {
+    const reported = this.reportedLines.get(key);
+    if (!reported) return false;
+    if (Math.abs(peak.frequency - reported.frequency) > binHz) return true;
+    return peak.amplitude < reported.ci95[0] || peak.amplitude > reported.ci95[1];
+  }
+
+  /**
+   * Emits one condition per axis key when its level changes, or when its line moved at the same
+   * level (see `lineMoved`); `binHz` is the frequency resolution of the test.
+   */
   private emitAxes(
     candidates: readonly Candidate[],
     t: number,
@@ -556,6 +574,7 @@ export class VibrationDetector implements Detector<VibrationSummary> {
     axes: readonly string[],
     threshold: number,
     series: readonly Float64Array[] | undefined,
+    binHz: number,
   ): void {
     const o = this.options;
     const fs = 1 / this.frameInterval;
@@ -570,8 +589,10 @@ export class VibrationDetector implements Detector<VibrationSummary> {
         else if (best.peak.msdBias >= o.msdBiasTolerance) level = 'warn';
         else level = 'info';
       }
-      if ((this.levels.get(key) ?? null) === level) continue;
+      if ((this.levels.get(key) ?? null) === level && !(best && this.lineMoved(key, best.peak, binHz))) continue;
       this.levels.set(key, level);
+      if (best) this.reportedLines.set(key, { frequency: best.peak.frequency, ci95: [best.peak.amplitudeCi95[0], best.peak.amplitudeCi95[1]] });
+      else this.reportedLines.delete(key);
       const maxStatistic = series && series[a] ? maxOf(Array.from(series[a]).filter((v) => !Number.isNaN(v))) : Number.NaN;
       if (!best) {
         out.push({
@@ -725,7 +746,7 @@ export class VibrationDetector implements Detector<VibrationSummary> {
     candidates.sort((p, q) => q.peak.amplitude - p.peak.amplitude);
     this.current = candidates.map((c) => c.peak);
     for (const c of candidates) this.remember(c.peak);
-    this.emitAxes(candidates, steps.t, out, this.alpha, ['x', 'y'], zThreshold, undefined);
+    this.emitAxes(candidates, steps.t, out, this.alpha, ['x', 'y'], zThreshold, undefined, df);
   }
 
   /** Keeps distinct lines over the run (same axis, within one bin), the largest amplitude of each. */

@@ -26,6 +26,9 @@ export interface StreamSettings {
   vibrationOnset: number;
   /** Time the vibration stops, s. */
   vibrationEnd: number;
+  /** From this time (s) on, the vibration has amplitude `vibrationAmplitudeLater` (µm) instead. */
+  vibrationChange: number;
+  vibrationAmplitudeLater: number;
   /** One particle (the first) oscillating alone along x: amplitude µm, frequency Hz. */
   loneAmplitude: number;
   loneFrequency: number;
@@ -49,6 +52,8 @@ export const STREAM_DEFAULTS: StreamSettings = {
   vibrationAngle: 0,
   vibrationOnset: 0,
   vibrationEnd: Number.POSITIVE_INFINITY,
+  vibrationChange: Number.POSITIVE_INFINITY,
+  vibrationAmplitudeLater: 0,
   loneAmplitude: 0,
   loneFrequency: 13.7,
   dropProbability: 0,
@@ -167,7 +172,8 @@ export class SimulatedStream {
       const w = 2 * Math.PI * s.vibrationFrequency;
       const half = (w * te) / 2;
       const sinc = half === 0 ? 1 : Math.sin(half) / half;
-      const v = s.vibrationAmplitude * sinc * Math.cos(w * (t + te / 2));
+      const amplitude = t >= s.vibrationChange ? s.vibrationAmplitudeLater : s.vibrationAmplitude;
+      const v = amplitude * sinc * Math.cos(w * (t + te / 2));
       stageMeanX += v * Math.cos(s.vibrationAngle);
       stageMeanY += v * Math.sin(s.vibrationAngle);
     }

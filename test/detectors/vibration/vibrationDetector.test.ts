@@ -1,4 +1,5 @@
 import { describe, expect, it } from 'vitest';
+import { AlertEngine } from '../../../src/alerts/alertEngine.js';
 import type { Condition } from '../../../src/alerts/condition.js';
 import { VibrationDetector, type VibrationDetectorOptions } from '../../../src/detectors/vibration/vibrationDetector.js';
 import { clopperPearson } from '../../../src/stats/quantiles.js';
@@ -36,6 +37,23 @@ function run(
     }
   }
   return { detector, conditions };
+}
+
+/**
+ * Consecutive conditions of one key change level, or re-report a line that moved: its frequency
+ * by more than a bin, or its amplitude outside the 95 % CI reported before.
+ */
+function changesOnly(conditions: readonly Condition[]): void {
+  for (let i = 1; i < conditions.length; i++) {
+    const [before, now] = [conditions[i - 1], conditions[i]];
+    if (now.level !== before.level) continue;
+    expect(now.level).not.toBe(null);
+    const moved =
+      Math.abs((now.detail!.frequencyHz as number) - (before.detail!.frequencyHz as number)) > BIN_HZ ||
+      now.effect!.value < before.effect!.ci95![0] ||
+      now.effect!.value > before.effect!.ci95![1];
+    expect(moved).toBe(true);
+  }
 }
 
 const sinc = (f: number, te: number): number => (f * te === 0 ? 1 : Math.abs(Math.sin(Math.PI * f * te) / (Math.PI * f * te)));
@@ -214,20 +232,21 @@ describe('VibrationDetector', () => {
       expect(delays[delays.length - 1]).toBeLessThanOrEqual(reference + DT);
     });
 
-    it('push: reports on change only, grades info / warn / stop by MSD bias and σ, and clears when the line stops', () => {
+    it('push: reports on change only (of level, or of the line), grades info / warn / stop by MSD bias and σ, and clears when the line stops', () => {
       // Severity rule (task): MSD effect A²(1 − cos ωτ) (estimators.md §10) vs 2Dτ + 2σ²; stop when A_eff > 2σ
       const graded = (A: number): Condition[] =>
         run(2200 + (K + 2) * L, { seed: 800, vibrationAmplitude: A, vibrationEnd: 22 }).conditions.filter((c) => c.key === 'vibration:x');
-      const changesOnly = (levels: (string | null)[]): void => {
-        for (let i = 1; i < levels.length; i++) expect(levels[i]).not.toBe(levels[i - 1]);
-      };
       const small = graded(0.01);
-      expect(small.map((c) => c.level)).toEqual(['info', null]);
+      // as the line leaves the window its amplitude falls, re-reported at the same level, then it clears
+      expect(small[0].level).toBe('info');
+      expect(small.slice(0, -1).every((c) => c.level === 'info')).toBe(true);
+      expect(small[small.length - 1].level).toBe(null);
+      changesOnly(small);
       const medium = graded(0.04);
       // while the line fades out of the window it may step down through info before clearing
       expect(medium[0].level).toBe('warn');
       expect(medium[medium.length - 1].level).toBe(null);
-      changesOnly(medium.map((c) => c.level));
+      changesOnly(medium);
       expect(medium[0].message).toMatch(/13\.\d+ Hz along x/);
       expect(medium[0].message).toMatch(/MSD/);
       expect(medium[0].effect?.unit).toBe('µm');
@@ -239,7 +258,30 @@ describe('VibrationDetector', () => {
       expect(medium[0].detail?.aliasesHz).toBeDefined();
       const large = graded(0.1);
       expect(large[0].level).toBe('stop');
-      changesOnly(large.map((c) => c.level));
+      changesOnly(large);
+    });
+
+    it('push: reports a line again at the same level when its amplitude leaves the reported CI, so the alert follows it', () => {
+      // 30 nm (warn) growing to 45 nm at 40 s: once the window holds only the larger line, the
+      // latest condition (and the engine's alert) describes 45 nm, not the first window's 30 nm
+      const { conditions } = run(8000, { seed: 801, vibrationAmplitude: 0.03, vibrationChange: 40, vibrationAmplitudeLater: 0.045 });
+      const axis = conditions.filter((c) => c.key === 'vibration:x');
+      expect(axis[0].level).toBe('warn');
+      expect(axis[0].effect!.value).toBeGreaterThan(0.025);
+      expect(axis[0].effect!.value).toBeLessThan(0.035);
+      expect(axis.length).toBeGreaterThan(1);
+      const last = axis[axis.length - 1];
+      expect(last.level).not.toBe(null);
+      expect(last.effect!.value).toBeGreaterThan(0.04);
+      expect(last.effect!.value).toBeLessThan(0.05);
+      expect(last.message).toContain(`${(last.effect!.value * 1000).toFixed(1)} nm 0-to-peak`);
+      changesOnly(axis);
+      // the alert engine keeps one alert and updates its message and effect
+      const engine = new AlertEngine();
+      for (const c of axis) engine.push([c]);
+      const alerts = engine.alerts().filter((a) => a.kind === 'vibration');
+      expect(alerts).toHaveLength(1);
+      expect(alerts[0].message).toBe(last.message);
     });
 
     it('push: the combined-axes form F(4K, 4Σ(N−1)) finds a diagonal line as axis xy', () => {

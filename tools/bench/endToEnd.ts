@@ -5,10 +5,11 @@
 // Run: npx tsx tools/bench/endToEnd.ts [msgpack|json] [particles=1000] [seconds=20] [thread|event-loop]
 // (the last: where the recording's batches are written, the server's `recordingThread` option)
 import { spawn } from 'node:child_process';
-import { mkdtempSync, rmSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { createInterface } from 'node:readline';
+import { type EventLoopUtilization, performance } from 'node:perf_hooks';
 import { WebSocket } from 'ws';
 import { startServer } from '../../server/startServer.js';
 
@@ -23,7 +24,27 @@ export interface EndToEndResult {
   queue: number[];
   dashboardMessages: number;
   recordedFrames: number | undefined;
+  /**
+   * Where the CPU went over the measured span, in % of one core: the server's main thread busy
+   * (event-loop utilisation), the server process (main thread, recording thread and the rest),
+   * and the rig process (from /proc; null where that is not readable).
+   */
+  cpu: { serverMainThread: number; serverProcess: number; rig: number | null };
 }
+
+/** CPU seconds (user + system) of process `pid` so far, from /proc (Linux), or null. */
+function processCpuSeconds(pid: number | undefined): number | null {
+  if (pid === undefined) return null;
+  try {
+    const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
+    // fields after the command name (which may hold spaces) : state is field 3, utime 14, stime 15
+    const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+    return (Number(fields[11]) + Number(fields[12])) / CLOCK_TICKS;
+  } catch {
+    return null;
+  }
+}
+const CLOCK_TICKS = 100; // USER_HZ on Linux
 
 export async function endToEnd(encoding: 'msgpack' | 'json', particles = 1000, seconds = 20, recordingThread = true): Promise<EndToEndResult> {
   const data = mkdtempSync(join(tmpdir(), 'jostle-bench-'));
@@ -41,6 +62,9 @@ export async function endToEnd(encoding: 'msgpack' | 'json', particles = 1000, s
     let firstAt: number | undefined;
     let firstCentroids = 0;
     let firstFrames = 0;
+    let firstElu: EventLoopUtilization | undefined;
+    let firstCpu: NodeJS.CpuUsage | undefined;
+    let firstRigCpu: number | null = null;
     const lines = createInterface({ input: child.stdout });
     lines.on('line', (line) => {
       const status = JSON.parse(line) as { sent: number; done?: boolean };
@@ -54,6 +78,9 @@ export async function endToEnd(encoding: 'msgpack' | 'json', particles = 1000, s
           firstAt = performance.now();
           firstCentroids = run.pipeline.counts().centroids;
           firstFrames = run.pipeline.counts().frames;
+          firstElu = performance.eventLoopUtilization();
+          firstCpu = process.cpuUsage();
+          firstRigCpu = processCpuSeconds(child.pid);
           dashboard = new WebSocket(`ws://127.0.0.1:${server.port}/watch?run=${runId}&token=${server.token}`);
           dashboard.on('message', () => dashboardMessages++);
         }
@@ -64,6 +91,9 @@ export async function endToEnd(encoding: 'msgpack' | 'json', particles = 1000, s
       }, 2);
     });
     const endedAt = performance.now();
+    const elu = performance.eventLoopUtilization(firstElu);
+    const cpu = process.cpuUsage(firstCpu);
+    const rigCpu = processCpuSeconds(child.pid);
     const run = server.registry.get(runId)!;
     const elapsed = (endedAt - (firstAt as number)) / 1000;
     const counts = run.pipeline.counts();
@@ -78,6 +108,11 @@ export async function endToEnd(encoding: 'msgpack' | 'json', particles = 1000, s
       queue,
       dashboardMessages,
       recordedFrames: server.registry.recorder.run(runId)?.frames,
+      cpu: {
+        serverMainThread: 100 * elu.utilization,
+        serverProcess: (100 * (cpu.user + cpu.system)) / 1e6 / elapsed,
+        rig: rigCpu !== null && firstRigCpu !== null ? (100 * (rigCpu - firstRigCpu)) / elapsed : null,
+      },
     };
   } finally {
     await server.close();

@@ -1,6 +1,6 @@
 // A/B timing of two checkouts on the same input, interleaved (load on a shared machine varies;
 // alternating the order each round keeps the comparison fair). Not a test.
-// Run: npx tsx tools/bench/abCompare.ts <other checkout root> [particles=1000] [frames=1000] [detectors|none|analyze] [rounds=9]
+// Run: node --import tsx/esm tools/bench/abCompare.ts <other checkout root> [particles=1000] [frames=1000] [detectors|none|analyze] [rounds=9]
 // `analyze` times `analyzeFile` on a simulated CSV (400 particles, 1,500 frames, as
 // analyzeThroughput.ts) instead of the pipeline on in-memory frames.
 import { mkdtemp, rm } from 'node:fs/promises';

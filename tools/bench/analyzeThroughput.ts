@@ -1,6 +1,6 @@
 // Benchmark: `analyze` throughput in centroids/s for linked (ids given) and unlinked input, on
 // a CSV written by the simulator, against the bare CSV read of the same file as the baseline.
-// Run: npx tsx tools/bench/analyzeThroughput.ts   (a figure, not a test)
+// Run: node --import tsx/esm tools/bench/analyzeThroughput.ts   (a figure, not a test)
 import { mkdtemp, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';

@@ -1,7 +1,7 @@
 // Time per frame of each detector inside the pipeline (not a test): the pipeline runs with every
 // detector, each detector's push wrapped in a timer; the MSD/CVE core is the rest. Also the
 // slowest single push of each detector (one-off calibrations show there).
-// Run: npx tsx tools/bench/detectorCosts.ts [particles=1000] [frames=3000] [frameInterval=0.001] [detector settings as JSON]
+// Run: node --import tsx/esm tools/bench/detectorCosts.ts [particles=1000] [frames=3000] [frameInterval=0.001] [detector settings as JSON]
 import { createDetectors } from '../../src/detectors/createDetectors.js';
 import type { Detector } from '../../src/detectors/detector.js';
 import { Pipeline } from '../../src/pipeline/pipeline.js';

@@ -2,7 +2,7 @@
 // (tools/bench/benchRig.ts) → ws → decode → pipeline → recording on → one dashboard watching,
 // both cores (the rig included). Reports centroids/s over the run, and the queue: frames sent
 // by the rig minus frames the pipeline has taken, sampled every second (flat = keeping up).
-// Run: npx tsx tools/bench/endToEnd.ts [msgpack|json] [particles=1000] [seconds=20] [thread|event-loop]
+// Run: node --import tsx/esm tools/bench/endToEnd.ts [msgpack|json] [particles=1000] [seconds=20] [thread|event-loop]
 // (the last: where the recording's batches are written, the server's `recordingThread` option)
 import { spawn } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
@@ -51,7 +51,7 @@ export async function endToEnd(encoding: 'msgpack' | 'json', particles = 1000, s
   const server = await startServer({ port: 0, host: '127.0.0.1', data, token: 'bench-token-123', log: () => undefined, quotaBytes: 64 * 2 ** 30, recordingThread });
   try {
     const root = join(import.meta.dirname, '..', '..');
-    const child = spawn(process.execPath, ['--import', 'tsx', 'tools/bench/benchRig.ts', `ws://127.0.0.1:${server.port}/rig`, server.token as string, encoding, String(particles), String(seconds)], {
+    const child = spawn(process.execPath, ['--import', 'tsx/esm', 'tools/bench/benchRig.ts', `ws://127.0.0.1:${server.port}/rig`, server.token as string, encoding, String(particles), String(seconds)], {
       cwd: root,
       stdio: ['ignore', 'pipe', 'inherit'],
     });

@@ -2,7 +2,7 @@
 // peers measured in the same run: msgpackr columnar decode copying into typed arrays allocated
 // once (the ceiling), new typed arrays per message, row-wise objects (msgpack maps and records),
 // and a JSON row-wise rig (JSON.parse of rows, then validation into typed arrays: the baseline the
-// target is set against). Run: npx tsx tools/bench/ingestThroughput.ts [particles=10000]
+// target is set against). Run: node --import tsx/esm tools/bench/ingestThroughput.ts [particles=10000]
 import { Packr, Unpackr } from 'msgpackr';
 import { decodeMessage } from '../../server/decodeMessage.js';
 import { FrameBuffers } from '../../server/frameBuffers.js';

@@ -6,8 +6,8 @@
 // sockets, synchronously), and the injected alerts' arrival on the dashboard socket (few: the
 // timing alert closes only after a clean block and a 5 s hold). Memory (RSS, heap, array
 // buffers) and the queue are sampled every `sampleSeconds`.
-// Run: npx tsx tools/bench/liveLatency.ts [particles=1000] [fps=100] [seconds=30] [sampleSeconds=5] [warmupSeconds=10]
-// The 10-minute soak: npx tsx tools/bench/liveLatency.ts 1000 100 600 30 30
+// Run: node --import tsx/esm tools/bench/liveLatency.ts [particles=1000] [fps=100] [seconds=30] [sampleSeconds=5] [warmupSeconds=10]
+// The 10-minute soak: node --import tsx/esm tools/bench/liveLatency.ts 1000 100 600 30 30
 // A 7th argument `probe` also lists the server-side calls slower than 50 ms (push, report,
 // recording batches, summary rows, dashboard updates) and the frames later than 200 ms.
 import { spawn } from 'node:child_process';
@@ -58,7 +58,7 @@ export async function liveLatency(particles = 1000, fps = 100, seconds = 30, sam
     // Data clock = wall clock (Δt = 1/fps); an injection every 20 s lets the timing detector's
     // clean block (1000 frames) and the alert engine's 5 s clear hold pass between them.
     const injectEvery = Math.max(10, Math.round(20 * fps));
-    const child = spawn(process.execPath, ['--import', 'tsx', 'tools/bench/benchRig.ts', `ws://127.0.0.1:${server.port}/rig`, server.token as string, 'msgpack', String(particles), String(seconds), String(fps), String(injectEvery), String(1 / fps)], {
+    const child = spawn(process.execPath, ['--import', 'tsx/esm', 'tools/bench/benchRig.ts', `ws://127.0.0.1:${server.port}/rig`, server.token as string, 'msgpack', String(particles), String(seconds), String(fps), String(injectEvery), String(1 / fps)], {
       cwd: root,
       stdio: ['ignore', 'pipe', 'inherit'],
     });

@@ -2,7 +2,7 @@
 // quickselect) against the same call with the detector's window (the mean ± 4 standard errors),
 // on fresh data each call (64 sets of N normal steps, cycled, so that branch prediction cannot
 // learn one set), plus the copy alone. Prints µs per median.
-// Run: npx tsx tools/bench/medianSelection.ts [N=1000] [calls=20000]
+// Run: node --import tsx/esm tools/bench/medianSelection.ts [N=1000] [calls=20000]
 import { medianInPlace } from '../../src/detectors/drift/medianInPlace.js';
 import { Random } from '../../src/stats/random.js';
 

@@ -1,6 +1,6 @@
 // Benchmark: the pipeline alone (frames already in typed arrays, ids given, every detector on)
 // against the bare MSD kernel and the naive MSD, measured in the same run.
-// Run: npx tsx tools/bench/pipelineThroughput.ts   (a figure, not a test)
+// Run: node --import tsx/esm tools/bench/pipelineThroughput.ts   (a figure, not a test)
 import { createDetectors } from '../../src/detectors/createDetectors.js';
 import type { Frame } from '../../src/frame.js';
 import { Pipeline } from '../../src/pipeline/pipeline.js';

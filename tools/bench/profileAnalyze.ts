@@ -1,5 +1,5 @@
 // Profiling entry for `analyze` on a CSV (not a test):
-//   node --import tsx --cpu-prof --cpu-prof-dir=/tmp/prof tools/bench/profileAnalyze.ts
+//   node --import tsx/esm --cpu-prof --cpu-prof-dir=/tmp/prof tools/bench/profileAnalyze.ts
 // then `node tools/bench/summariseProfile.mjs /tmp/prof`.
 import { mkdtemp, rm } from 'node:fs/promises';
 import { tmpdir } from 'node:os';

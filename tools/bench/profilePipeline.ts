@@ -1,5 +1,5 @@
 // Profiling entry for the pipeline hot path (not a test):
-//   node --import tsx --cpu-prof --cpu-prof-dir=/tmp/prof tools/bench/profilePipeline.ts [particles] [frames] [linked|unlinked]
+//   node --import tsx/esm --cpu-prof --cpu-prof-dir=/tmp/prof tools/bench/profilePipeline.ts [particles] [frames] [linked|unlinked]
 // then summarise the self time with `node tools/bench/summariseProfile.mjs /tmp/prof`.
 import { benchFrames } from './benchFrames.js';
 import { runPipeline } from './pipelineThroughput.js';

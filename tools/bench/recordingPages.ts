@@ -2,7 +2,7 @@
 // rows (x, y as float64 BLOBs, ids as uint32, the recorder's table and statement) into a fresh
 // WAL database in a temporary folder, for 4 KiB and 16 KiB pages, alternated, and prints µs per
 // frame (best of the rounds). Used to choose the recorder's page size (server/recorder.ts).
-// Run: npx tsx tools/bench/recordingPages.ts [particles=40,400,1000,10000] [rounds=3]
+// Run: node --import tsx/esm tools/bench/recordingPages.ts [particles=40,400,1000,10000] [rounds=3]
 import Database from 'better-sqlite3';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';

@@ -1,7 +1,7 @@
 // `npm run bench`: every benchmark figure, each with its ratio to a peer measured in the same
 // run, and the target it is set against (issue 6). Figures are printed, never asserted.
 // Flags: --quick (fewer runs, 10 s live runs), --skip-live (no server runs).
-// The 10-minute soak is separate: npx tsx tools/bench/liveLatency.ts 1000 100 600 30 30
+// The 10-minute soak is separate: node --import tsx/esm tools/bench/liveLatency.ts 1000 100 600 30 30
 import { analyzeThroughput } from './analyzeThroughput.js';
 import { endToEnd } from './endToEnd.js';
 import { machineLine, table, type BenchFigure } from './harness.js';
@@ -64,7 +64,7 @@ console.log(scalingTable(scaling(quick ? 1 : 3)));
 console.log('\n## Memory per live track (2 axes, 16 lags, maxLag 128)\n');
 // in a fresh process with the collector exposed, so that other benchmarks' garbage does not count
 const memory = JSON.parse(
-  execFileSync(process.execPath, ['--expose-gc', '--import', 'tsx', 'tools/bench/trackMemory.ts'], { cwd: new URL('../..', import.meta.url).pathname, encoding: 'utf8' }),
+  execFileSync(process.execPath, ['--expose-gc', '--import', 'tsx/esm', 'tools/bench/trackMemory.ts'], { cwd: new URL('../..', import.meta.url).pathname, encoding: 'utf8' }),
 ) as TrackMemory;
 console.log(`layout: ring ${memory.ringBytes} B + the rest ${memory.otherBytes} B per track; measured at ${memory.tracks} tracks: ${memory.measuredPipelineOnly.toFixed(0)} B (pipeline; the table doubles), ${memory.measuredWithDetectors.toFixed(0)} B with every detector`);
 

@@ -1,7 +1,7 @@
 // Benchmark: cost per frame against particles (10²–10⁴) and lags (8–32), to show it grows
 // linearly (per centroid·lag cost flat), not worse. Pipeline with ids given; the grid without
 // detectors (the MSD part, which carries the lags), and one column with every detector on.
-// Run: npx tsx tools/bench/scaling.ts   (a figure, not a test)
+// Run: node --import tsx/esm tools/bench/scaling.ts   (a figure, not a test)
 import { benchFrames } from './benchFrames.js';
 import { machineLine } from './harness.js';
 import { runPipeline } from './pipelineThroughput.js';

@@ -2,7 +2,7 @@
 // of data time pushed one by one, a full report every `reportEvery` frames (the dashboard's
 // 10 Hz update) — timing every push and every report, to find the slow ones and whether the
 // report's cost grows with the run's length.
-// Run: npx tsx tools/bench/stallProbe.ts [particles=1000] [fps=100] [dataSeconds=300] [reportEvery=10]
+// Run: node --import tsx/esm tools/bench/stallProbe.ts [particles=1000] [fps=100] [dataSeconds=300] [reportEvery=10]
 import { createDetectors } from '../../src/detectors/createDetectors.js';
 import { Pipeline } from '../../src/pipeline/pipeline.js';
 import { refreshContext } from '../../src/pipeline/refreshContext.js';

@@ -1,6 +1,6 @@
 // Benchmark: memory per live track, measured (array buffers and heap before and after a run
 // holding 10,000 live tracks) and from the layout (bytes per track of each per-track array).
-// Run: node --expose-gc --import tsx tools/bench/trackMemory.ts   (a figure, not a test)
+// Run: node --expose-gc --import tsx/esm tools/bench/trackMemory.ts   (a figure, not a test)
 import { createDetectors } from '../../src/detectors/createDetectors.js';
 import { msdLags } from '../../src/msd/msdLags.js';
 import { Pipeline } from '../../src/pipeline/pipeline.js';

@@ -178,6 +178,34 @@ describe('ClumpingDetector', () => {
       expect(pairMedian).toBeGreaterThanOrEqual(reference / 1.3);
     });
 
+    it('summary() gives the share of tracks twice as bright (§3e intensity population), near the truth after unresolved sticking and near 0 without', () => {
+      // 160 beads in 60 µm × 60 µm; from 20 s, beads that touch stick (5 % a frame) and show as
+      // one centroid with the summed intensity. The fit counts each track once, by its median ln I.
+      const population = (gen: Partial<ClumpingStepsOptions>, seconds: number) => {
+        const generator = new ClumpingSteps({ particles: 160, box: 70, field: 60, diffusion: D, frameInterval: DT, sigma: SIGMA, seed: 31, ...gen });
+        const detector = new ClumpingDetector();
+        let last = generator.next();
+        for (let k = 0; k < Math.round(seconds / DT); k++) {
+          detector.push(last, context);
+          last = generator.next();
+        }
+        return { summary: detector.summary(), generator, present: last.count };
+      };
+      const clean = population({}, 60).summary.intensityDimerFraction!;
+      expect(clean.tracks).toBeGreaterThan(100);
+      expect(clean.value).toBeLessThan(0.05);
+      expect(clean.ci95[0]).toBe(0);
+      expect(clean.monomerIntensity).toBeGreaterThan(0);
+      const stuck = population({ sticking: { onset: 20, probability: 0.05, contact: 0.9, unresolved: true } }, 60);
+      const fit = stuck.summary.intensityDimerFraction!;
+      const truth = stuck.generator.dimerLeaderIds().length / stuck.present;
+      expect(truth).toBeGreaterThan(0.05);
+      expect(Math.abs(fit.value - truth)).toBeLessThan(Math.max(0.06, fit.ci95[1] - fit.ci95[0]));
+      expect(fit.ci95[0]).toBeGreaterThan(0);
+      // without intensities there is nothing to fit
+      expect(population({ intensityNoise: null }, 30).summary.intensityDimerFraction).toBeNull();
+    });
+
     it('push() on unresolved sticking records merges at about twice the brightness and warns', () => {
       // detectors.md §3d: I_after/I_before ≈ 2 for equal particles; the merged centroid carries the
       // leader's id in the generator, so every recorded merge's b must be a true dimer leader.

@@ -196,8 +196,8 @@ export class LiveRun {
    * The whole state a dashboard draws. Computes the report: O(tracks × lags). For an update
    * (`forUpdate`), a live run's report leaves out its per-track table, which the dashboard does
    * not draw and which is most of the message (about 130 bytes of JSON per track, up to
-   * `maxTrackTable` rows); `tracksOmitted` then says so. Snapshots, the report over HTTP, the
-   * final report and the export keep it.
+   * `maxTrackTable` rows); `tracksOmitted` then says so. Snapshots, the report over HTTP and the
+   * final report keep it.
    */
   runState(forUpdate = false): RunState {
     const omit = forUpdate && !(this.state === 'ended' && this.finalReport);

@@ -4,6 +4,7 @@ import { clopperPearson, normalUpperTail } from '../../stats/quantiles.js';
 import type { Detector } from '../detector.js';
 import type { DetectorContext } from '../detectorContext.js';
 import type { FrameSteps } from '../frameSteps.js';
+import { medianInPlace } from '../drift/medianInPlace.js';
 import { TrackCache } from '../trackCache.js';
 import { persistenceFrames } from './chancePersistence.js';
 import { clarkEvans, NearestNeighbourScratch, type ClarkEvansResult } from './clarkEvans.js';
@@ -12,7 +13,7 @@ import { ClosePairEpisodes } from './closePairEpisodes.js';
 import { countUpperTail } from './countUpperTail.js';
 import { intensityMixture } from './intensityMixture.js';
 import { segmentRelativeSe } from './segmentRelativeSe.js';
-import { TrackRecord } from './trackRecord.js';
+import { INTENSITY_HISTORY, TrackRecord } from './trackRecord.js';
 
 /** Options of {@link ClumpingDetector}; every field has a default. */
 export interface ClumpingOptions {
@@ -85,8 +86,8 @@ export interface ClumpingSummary {
   dimerFraction: { value: number; ci95: [number, number] } | null;
   /**
    * Fraction of the tracks in view that are dimers by brightness (detectors.md §3e): the tracks'
-   * median log intensities fitted by a mixture of monomers and twice-as-bright dimers at the last
-   * block's end, with a profile-likelihood 95 % CI; reported, not alerted on. Null without
+   * median log intensities at the last block's end, fitted by a mixture of monomers and
+   * twice-as-bright dimers, with a profile-likelihood 95 % CI; reported, not alerted on. Null without
    * intensities or with fewer than 30 tracks of 10 or more readings.
    */
   intensityDimerFraction: {
@@ -269,6 +270,10 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
   private dimerFraction: { value: number; ci95: [number, number] } | null = null;
   private intensityPopulation: ClumpingSummary['intensityDimerFraction'] = null;
   private populationScratch = new Float64Array(256);
+  private populationCount = 0;
+  private populationTime = 0;
+  private populationFitted = true;
+  private readonly medianScratch = new Float64Array(INTENSITY_HISTORY);
   private readonly recentSegments: [number, number][] = [];
   private slowPending: [number, number] = [0, 0];
   private slowNote = '';
@@ -452,7 +457,7 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     this.blockIndex++;
     // Housekeeping: forget tracks not seen for a long time (ended without notice).
     for (const [id, record] of this.tracks.entries()) if (slot - record.lastSlot > 4 * this.blockFrames) this.tracks.delete(id);
-    if (intensity) this.fitIntensityPopulation(slot, steps.t);
+    if (intensity) this.takeIntensityPopulation(slot, steps.t);
     if (!this.baselineDone) {
       if (this.blockIndex >= this.options.baselineBlocks) this.finishBaseline(context);
       return [];
@@ -464,11 +469,13 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
   }
 
   /**
-   * The intensity-population fit (§3e) over the tracks seen in the last block with at least
-   * `POPULATION_MIN_READINGS` (10) intensity readings, each by the median of its recent ln I. O(tracks ·
-   * (48 log 48 + EM iterations)), once per block.
+   * Takes the intensity population (§3e) at a block's end: the tracks seen in that block with at
+   * least `POPULATION_MIN_READINGS` (10) intensity readings, each by the median of its recent ln I.
+   * O(tracks · 48). The mixture is fitted from these only when a summary asks
+   * (`intensityPopulationFit`), at most once per block: the result is the same as fitting here,
+   * and a file's analysis fits once, at the end.
    */
-  private fitIntensityPopulation(slot: number, t: number): void {
+  private takeIntensityPopulation(slot: number, t: number): void {
     let n = 0;
     for (const record of this.tracks.values()) {
       if (slot - record.lastSlot > this.blockFrames || record.intensityCount < POPULATION_MIN_READINGS) continue;
@@ -477,13 +484,25 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
         grown.set(this.populationScratch);
         this.populationScratch = grown;
       }
-      // the ring's first intensityCount entries are filled (all of it once full)
-      this.populationScratch[n++] = median(record.logIntensity, record.intensityCount);
+      // the ring's first intensityCount entries are filled (all of it once full); quickselect on a copy
+      this.medianScratch.set(record.logIntensity.subarray(0, record.intensityCount));
+      this.populationScratch[n++] = medianInPlace(this.medianScratch, record.intensityCount);
     }
-    const fit = intensityMixture(this.populationScratch, n);
-    this.intensityPopulation = fit
-      ? { value: fit.dimerFraction, ci95: fit.ci95, tracks: fit.tracks, monomerIntensity: Math.exp(fit.monomerLogIntensity), logSpread: fit.spread, t }
-      : null;
+    this.populationCount = n;
+    this.populationTime = t;
+    this.populationFitted = false;
+  }
+
+  /** The mixture fit of the last block's intensity population (fitted once per block, on demand). */
+  private intensityPopulationFit(): ClumpingSummary['intensityDimerFraction'] {
+    if (!this.populationFitted) {
+      this.populationFitted = true;
+      const fit = intensityMixture(this.populationScratch, this.populationCount);
+      this.intensityPopulation = fit
+        ? { value: fit.dimerFraction, ci95: fit.ci95, tracks: fit.tracks, monomerIntensity: Math.exp(fit.monomerLogIntensity), logSpread: fit.spread, t: this.populationTime }
+        : null;
+    }
+    return this.intensityPopulation;
   }
 
   /** The report fragment (bounded by `maxListed`). O(open pairs + listed). */
@@ -495,12 +514,13 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     }
     const looks = {} as Record<SignalName, SignalLooks>;
     for (const name of SIGNALS) looks[name] = { ...this.looks[name] };
+    const population = this.intensityPopulationFit();
     return {
       nearestNeighbour: nn ? { ratio: nn.ratio, z: nn.z, baselineZ: Number.isFinite(this.baselineZ) ? this.baselineZ : null } : null,
       persistentPairs: this.persistentLog.map((p) => ({ ...p })),
       merges: this.merges.map((m) => ({ ...m })),
       dimerFraction: this.dimerFraction ? { value: this.dimerFraction.value, ci95: [...this.dimerFraction.ci95] as [number, number] } : null,
-      intensityDimerFraction: this.intensityPopulation ? { ...this.intensityPopulation, ci95: [...this.intensityPopulation.ci95] as [number, number] } : null,
+      intensityDimerFraction: population ? { ...population, ci95: [...population.ci95] as [number, number] } : null,
       pairs,
       design: {
         blockFrames: this.blockFrames,

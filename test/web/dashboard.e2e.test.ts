@@ -91,6 +91,44 @@ describe('dashboard against the live server', () => {
     await rig.done;
   }, 90_000);
 
+  it('shows a stop-level alert as the HALT banner: full width, tall, double-bordered, pulsing, announced', async () => {
+    // a second server whose recording quota (200 kB) a clean run passes within seconds: the
+    // recording stops with a `stop` alert, the one stop level that needs no physics to fire
+    const quotaServer = await startServe(tempDir('jostle-e2e-quota-'), 0, ['--quota', '200000']);
+    const rig = startRig(quotaServer, 'clean', ['--frames', '1200', '--speed', '12', '--run-id', 'e2e-halt']);
+    await waitFor('run e2e-halt in /api/runs', async () => {
+      const r = await fetch(`http://127.0.0.1:${quotaServer.port}/api/runs`, { headers: { authorization: `Bearer ${quotaServer.token}` } });
+      return ((await r.json()) as { id: string }[]).some((x) => x.id === 'e2e-halt');
+    }, 20_000);
+    await page.goto(`${quotaServer.url}&run=e2e-halt`);
+    await waitFor('stop level on the strip', async () => (await page.locator('#strip').getAttribute('data-level')) === 'stop', 30_000);
+    const banner = page.locator('.banner');
+    expect(await banner.getAttribute('class')).toContain('banner-stop');
+    expect(await banner.getAttribute('role')).toBe('alert');
+    expect(await banner.locator('.banner-word').textContent()).toBe('HALT');
+    expect(await banner.locator('.banner-icon').textContent()).toBe('⬣');
+    const look = await banner.evaluate((el) => {
+      const style = getComputedStyle(el);
+      const box = el.getBoundingClientRect();
+      const host = el.parentElement!.getBoundingClientRect();
+      return { borderStyle: style.borderTopStyle, borderWidth: style.borderTopWidth, outline: style.outlineStyle, animation: style.animationName, width: box.width, hostWidth: host.width, height: box.height, fontSize: parseFloat(style.fontSize) };
+    });
+    expect(look.borderStyle).toBe('double');
+    expect(look.borderWidth).toBe('6px');
+    expect(look.outline).toBe('solid');
+    expect(look.animation).toBe('halt-pulse');
+    expect(look.width).toBeGreaterThan(0.95 * look.hostWidth);
+    expect(look.fontSize).toBeGreaterThanOrEqual(30); // 2 rem on the 17 px base
+    expect(look.height).toBeGreaterThan(2 * look.fontSize);
+    // the recording card carries the same level, in words and in its border
+    const card = page.locator('.alert-card', { hasText: 'recording stopped' }).first();
+    expect(await card.getAttribute('class')).toContain('level-stop');
+    expect(await card.textContent()).toContain('HALT');
+    await page.screenshot({ path: join(DOCS, 'halt.png'), fullPage: true });
+    await rig.done;
+    await quotaServer.stop();
+  }, 90_000);
+
   it('raises the drift alert in the page when drift starts mid-run, and acknowledges it with k', async () => {
     const rig = startRig(server, 'drift', ['--speed', '4', '--run-id', 'e2e-drift']);
     await openRun('e2e-drift');

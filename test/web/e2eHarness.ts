@@ -40,11 +40,11 @@ export async function stopAll(): Promise<void> {
 }
 
 /**
- * Starts the real server (`jostle serve --port <port> --data <folder>`) and resolves with the
- * address it prints as its first stdout line (CONTRACTS §1).
+ * Starts the real server (`jostle serve --port <port> --data <folder> …extra`) and resolves with
+ * the address it prints as its first stdout line (CONTRACTS §1).
  */
-export function startServe(data: string, port = 0): Promise<ServerChild> {
-  const child = spawn(process.execPath, [CLI, 'serve', '--port', String(port), '--data', data], { cwd: ROOT, stdio: ['ignore', 'pipe', 'pipe'] });
+export function startServe(data: string, port = 0, extra: string[] = []): Promise<ServerChild> {
+  const child = spawn(process.execPath, [CLI, 'serve', '--port', String(port), '--data', data, ...extra], { cwd: ROOT, stdio: ['ignore', 'pipe', 'pipe'] });
   children.add(child);
   let stderr = '';
   child.stderr!.on('data', (d) => (stderr += d));

@@ -42,7 +42,7 @@ const alphaHigh = 2;
 const gridSize = 40;
 /**
  * Brent's method stops with α known to about 3×10⁻⁸ (α's SE is ≥ 10⁻⁴ in practice; √ε is the
- * useful limit of a minimiser, Brent 1973 §5.4).
+ * useful limit of a minimiser, Brent 1973, ch. 5).
  */
 const alphaRelativeTolerance = 1.5e-8;
 const alphaAbsoluteTolerance = 1e-10;

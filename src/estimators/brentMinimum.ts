@@ -7,7 +7,7 @@
  *
  * Stops when x is within 2·tol of the minimum's bracket mid-point, tol = relative·|x| + absolute.
  * Near a smooth minimum f is flat to second order, so `relative` below √ε ≈ 1.5×10⁻⁸ gains
- * nothing (Brent 1973, §5.4). O(evaluations); typically 8–15 evaluations where golden section
+ * nothing (Brent 1973, ch. 5). O(evaluations); typically 8–15 evaluations where golden section
  * needs 35 for the same bracket width.
  *
  * @param f the function; a non-finite value counts as +∞ (so the search moves away from it).

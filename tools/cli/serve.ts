@@ -29,14 +29,35 @@ export function serveOptions(flags: ServeFlags): ServerOptions {
   };
 }
 
-/** Starts the server, mapping bad options to a usage error (exit 2). */
+/** Error codes of a data folder that cannot be written, and what each means. */
+const STORAGE_PROBLEMS: Record<string, string> = {
+  ENOSPC: 'no space left on its device',
+  EDQUOT: 'the disk quota is used up',
+  EROFS: 'its file system is read-only',
+  EACCES: 'permission denied',
+  EPERM: 'permission denied',
+  ENOTDIR: 'a part of its path is a file, not a folder',
+  SQLITE_FULL: 'no space left for the recording',
+  SQLITE_CANTOPEN: 'the recording cannot be opened',
+  SQLITE_READONLY: 'the recording is read-only',
+};
+
+/** Starts the server, mapping bad options and an unusable data folder to a usage error (exit 2). */
 export async function startFromFlags(options: ServerOptions): Promise<JostleServer> {
   try {
     return await startServer(options);
   } catch (error) {
     if (error instanceof RangeError) throw new UsageError(error.message, 'JOSTLE_E_OPTION');
     const code = (error as { code?: string }).code;
-    if (code === 'EADDRINUSE' || code === 'EACCES') throw new UsageError(`cannot listen on ${options.host}:${options.port} (${code})`, 'JOSTLE_E_LISTEN');
+    if (code === 'EADDRINUSE' || (code === 'EACCES' && (error as { syscall?: string }).syscall === 'listen')) {
+      throw new UsageError(`cannot listen on ${options.host}:${options.port} (${code})`, 'JOSTLE_E_LISTEN');
+    }
+    // The data folder cannot take the token file or the recording: say so in one line, not a stack.
+    const storage = code ? STORAGE_PROBLEMS[code] : undefined;
+    if (storage) {
+      const remedy = code === 'ENOSPC' || code === 'EDQUOT' || code === 'SQLITE_FULL' ? 'free space there or choose' : 'choose';
+      throw new UsageError(`cannot use the data folder ${options.data ?? './jostle-data'}: ${storage} (${code}); ${remedy} another folder with --data`, 'JOSTLE_E_DATA');
+    }
     throw error;
   }
 }

@@ -1,5 +1,5 @@
 import { startServer, type JostleServer } from '../../server/startServer.js';
-import type { ServerOptions } from '../../server/serverOptions.js';
+import { SERVER_DEFAULTS, type ServerOptions } from '../../server/serverOptions.js';
 import { numberOption, UsageError } from './usageError.js';
 
 /** The flags of `jostle serve` as commander hands them over. */
@@ -56,7 +56,7 @@ export async function startFromFlags(options: ServerOptions): Promise<JostleServ
     const storage = code ? STORAGE_PROBLEMS[code] : undefined;
     if (storage) {
       const remedy = code === 'ENOSPC' || code === 'EDQUOT' || code === 'SQLITE_FULL' ? 'free space there or choose' : 'choose';
-      throw new UsageError(`cannot use the data folder ${options.data ?? './jostle-data'}: ${storage} (${code}); ${remedy} another folder with --data`, 'JOSTLE_E_DATA');
+      throw new UsageError(`cannot use the data folder ${options.data ?? SERVER_DEFAULTS.data}: ${storage} (${code}); ${remedy} another folder with --data`, 'JOSTLE_E_DATA');
     }
     throw error;
   }

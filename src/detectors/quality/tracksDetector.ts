@@ -158,9 +158,16 @@ export class TracksDetector implements Detector<TracksSummary> {
     const area = (f.xMax - f.xMin) * (f.yMax - f.yMin);
     if (steps.stepCount > 0 && area > 0) {
       let s2 = 0, n = 0;
-      for (let i = 0; i < steps.stepCount; i++) {
-        const q = steps.dx[i] * steps.dx[i] + steps.dy[i] * steps.dy[i];
-        if (Number.isFinite(q)) { s2 += q; n++; }
+      const sums = steps.sums;
+      if (sums !== undefined && sums.steps === steps.stepCount && Number.isFinite(sums.squares)) {
+        // the pipeline's own sums over the frame's steps (all finite): no pass over the steps
+        s2 = sums.squares;
+        n = sums.steps;
+      } else {
+        for (let i = 0; i < steps.stepCount; i++) {
+          const q = steps.dx[i] * steps.dx[i] + steps.dy[i] * steps.dy[i];
+          if (Number.isFinite(q)) { s2 += q; n++; }
+        }
       }
       if (n > 0) {
         this.windowCrowdingSum += (steps.count / area) * (s2 / n);

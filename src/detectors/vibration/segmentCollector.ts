@@ -1,5 +1,4 @@
 import type { FrameSteps } from '../frameSteps.js';
-import { TrackCache } from '../trackCache.js';
 
 /**
  * Gathers the one-frame steps of every particle present throughout a segment of `length`
@@ -9,19 +8,33 @@ import { TrackCache } from '../trackCache.js';
  * counted, and a new segment starts with the next one-slot step. Duplicated frames (slot gap 0)
  * are ignored.
  *
- * Storage: one row of `length` steps per axis per particle, in preallocated `Float64Array`s
- * that grow by doubling when more particles are present than ever before. Cost O(steps) per
- * frame; no allocation per frame except when a new maximum particle count is seen.
- * Units: steps in µm.
+ * At most `maxRows` particles are kept per segment: the first ones (in the frame's order) to
+ * make a step into the segment's first slot. The choice looks at no step value, so the F-test
+ * stays exact on the subset (Shumway 1970, JASA 65:1527: any set of independent series); only
+ * its sensitivity falls, as about √(maxRows/N) in amplitude (see the README's table).
+ *
+ * Storage: one row of `length` steps per axis per kept particle, in `Float64Array`s that grow
+ * by doubling up to `maxRows` rows (at most 16·maxRows·length bytes: 1 MiB at 256 × 256), and
+ * 16 bytes per pipeline track row for the lookup below. Cost O(steps) per frame, a few array
+ * reads for a particle not kept; no allocation per frame except when the rows or the track rows
+ * grow. Units: steps in µm.
+ *
+ * Lookup: each frame's particles carry the pipeline's track row (`FrameSteps.trackRow`), and
+ * the collector keeps, per track row, the id last seen there and its segment row (−1: not
+ * kept), stamped with the segment, so a particle is placed or passed over with no Map probe.
+ * A row holding another id (hand-made frames may number rows by index) falls back to the Map
+ * of kept ids, which is the source of truth: membership is fixed at the segment's first step.
  *
  * @example
- * const collector = new SegmentCollector(256);
+ * const collector = new SegmentCollector(256, 256);
  * // for each frame: if (collector.push(steps)) use collector.rows, collector.stepsX, stepsY
  * collector.completeRows; // → number of particles present throughout the last segment
  */
 export class SegmentCollector {
   /** Segment length L, steps. */
   readonly length: number;
+  /** Most particles kept per segment. */
+  readonly maxRows: number;
   /** Steps along x of the particles of the completed segment, row-major (`row·L + t`), µm. */
   stepsX: Float64Array;
   /** Steps along y, same layout, µm. */
@@ -36,23 +49,36 @@ export class SegmentCollector {
   completedSegments: number;
   /** Slot of the first step of the current segment. */
   segmentStartSlot: number;
-  private readonly rowOf: TrackCache<number>;
+  /** Kept track id → segment row (the source of truth for membership). */
+  private readonly rowOf = new Map<number, number>();
+  // Per pipeline track row: the id last seen there, its segment row (−1: not kept), and the
+  // segment (generation) that stamped it.
+  private seenId: Float64Array = new Float64Array(1024).fill(-1);
+  private seenRow: Int32Array = new Int32Array(1024);
+  private seenGeneration: Int32Array = new Int32Array(1024).fill(-1);
+  private generation = 0;
   private rowFilled: Int32Array;
   private rows: number;
   private position: number;
 
-  /** @param length segment length L in steps (integer ≥ 8). */
-  constructor(length: number) {
+  /**
+   * @param length segment length L in steps (integer ≥ 8).
+   * @param maxRows most particles kept per segment (integer ≥ 1; default: no limit).
+   */
+  constructor(length: number, maxRows = Number.POSITIVE_INFINITY) {
     if (!Number.isInteger(length) || length < 8) {
       throw new RangeError('SegmentCollector requires an integer length >= 8');
     }
+    if (!(maxRows >= 1) || (maxRows !== Number.POSITIVE_INFINITY && !Number.isInteger(maxRows))) {
+      throw new RangeError('SegmentCollector requires maxRows an integer >= 1');
+    }
     this.length = length;
-    const capacity = 64;
+    this.maxRows = maxRows;
+    const capacity = Math.min(64, maxRows);
     this.stepsX = new Float64Array(capacity * length);
     this.stepsY = new Float64Array(capacity * length);
     this.rowTrackId = new Uint32Array(capacity);
     this.rowFilled = new Int32Array(capacity);
-    this.rowOf = new TrackCache();
     this.rows = 0;
     this.position = 0;
     this.completeRows = 0;
@@ -88,19 +114,37 @@ export class SegmentCollector {
         const particle = steps.stepParticle[j];
         const id = steps.trackId[particle];
         if (this.rowOf.has(id)) continue; // duplicate id in one frame: keep the first
+        if (this.rows >= this.maxRows) {
+          this.remember(steps.trackRow[particle], id, -1);
+          continue;
+        }
         this.ensureCapacity(this.rows + 1);
         const row = this.rows++;
-        this.rowOf.set(id, steps.trackRow[particle], row);
+        this.rowOf.set(id, row);
+        this.remember(steps.trackRow[particle], id, row);
         this.rowTrackId[row] = id;
         this.stepsX[row * L] = steps.dx[j];
         this.stepsY[row * L] = steps.dy[j];
         this.rowFilled[row] = 1;
       }
     } else {
+      const seenId = this.seenId;
+      const seenRow = this.seenRow;
+      const seenGeneration = this.seenGeneration;
+      const generation = this.generation;
+      const size = seenId.length;
       for (let j = 0; j < steps.stepCount; j++) {
         const particle = steps.stepParticle[j];
-        const row = this.rowOf.find(steps.trackId[particle], steps.trackRow[particle]);
-        if (row === undefined || this.rowFilled[row] !== t) continue;
+        const id = steps.trackId[particle];
+        const trackRow = steps.trackRow[particle];
+        let row: number;
+        if (trackRow >= 0 && trackRow < size && seenId[trackRow] === id && seenGeneration[trackRow] === generation) {
+          row = seenRow[trackRow];
+        } else {
+          row = this.rowOf.get(id) ?? -1;
+          this.remember(trackRow, id, row);
+        }
+        if (row < 0 || this.rowFilled[row] !== t) continue;
         const dx = steps.dx[j];
         const dy = steps.dy[j];
         // Bad-input policy: a non-finite step removes that particle from the segment.
@@ -131,13 +175,35 @@ export class SegmentCollector {
 
   private reset(): void {
     this.rowOf.clear();
+    this.generation++; // every track row's entry goes stale at once
     this.rows = 0;
     this.position = 0;
   }
 
+  /** Notes that track row `trackRow` holds `id`, kept at segment row `row` (−1: not kept). */
+  private remember(trackRow: number, id: number, row: number): void {
+    if (!(trackRow >= 0) || !Number.isInteger(trackRow) || trackRow >= MAX_TRACK_ROWS) return; // such rows only miss
+    if (trackRow >= this.seenId.length) {
+      let size = this.seenId.length;
+      while (size <= trackRow) size *= 2;
+      const seenId = new Float64Array(size).fill(-1);
+      seenId.set(this.seenId);
+      const seenRow = new Int32Array(size);
+      seenRow.set(this.seenRow);
+      const seenGeneration = new Int32Array(size).fill(-1);
+      seenGeneration.set(this.seenGeneration);
+      this.seenId = seenId;
+      this.seenRow = seenRow;
+      this.seenGeneration = seenGeneration;
+    }
+    this.seenId[trackRow] = id;
+    this.seenRow[trackRow] = row;
+    this.seenGeneration[trackRow] = this.generation;
+  }
+
   private ensureCapacity(rows: number): void {
     if (rows <= this.rowTrackId.length) return;
-    const capacity = Math.max(rows, this.rowTrackId.length * 2);
+    const capacity = Math.min(this.maxRows, Math.max(rows, this.rowTrackId.length * 2));
     const grow = (old: Float64Array): Float64Array => {
       const next = new Float64Array(capacity * this.length);
       next.set(old);
@@ -153,3 +219,6 @@ export class SegmentCollector {
     this.rowFilled = filled;
   }
 }
+
+/** Track rows above this are not remembered (a frame source that passes ids as rows stays bounded). */
+const MAX_TRACK_ROWS = 1 << 20;

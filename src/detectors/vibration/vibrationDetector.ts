@@ -39,6 +39,13 @@ export interface VibrationDetectorOptions {
   stopAmplitudeRatio: number;
   /** Fewest particles present throughout a segment for it to be used. Default 3. */
   minParticles: number;
+  /**
+   * Most particles per segment entering the F-test: the first ones (in the frame's order) to step
+   * into the segment's first slot. Bounds the per-segment FFTs and the collector's memory
+   * (16·L bytes per particle). The test stays exact; the line amplitude it can find grows about as
+   * √(N/maxParticles) above this many. Default 256.
+   */
+  maxParticles: number;
   /** Lomb–Scargle takes over when more than this fraction of the segments ending in the last K·L slots broke on a dropped frame. Default 0.5. */
   fallbackBrokenFraction: number;
 }
@@ -97,6 +104,7 @@ export const VIBRATION_DEFAULTS: Readonly<VibrationDetectorOptions> = Object.fre
   msdBiasTolerance: 0.03,
   stopAmplitudeRatio: 2,
   minParticles: 3,
+  maxParticles: 256,
   fallbackBrokenFraction: 0.5,
 });
 
@@ -211,10 +219,13 @@ export class VibrationDetector implements Detector<VibrationSummary> {
     if (!(o.msdBiasTolerance > 0)) throw new RangeError('VibrationDetector requires msdBiasTolerance > 0');
     if (!(o.stopAmplitudeRatio > 0)) throw new RangeError('VibrationDetector requires stopAmplitudeRatio > 0');
     if (!Number.isInteger(o.minParticles) || o.minParticles < 3) throw new RangeError('VibrationDetector requires minParticles an integer >= 3');
+    if (!Number.isInteger(o.maxParticles) || o.maxParticles < o.minParticles) {
+      throw new RangeError('VibrationDetector requires maxParticles an integer >= minParticles');
+    }
     if (!(o.fallbackBrokenFraction >= 0 && o.fallbackBrokenFraction < 1)) throw new RangeError('VibrationDetector requires fallbackBrokenFraction in [0, 1)');
     this.options = Object.freeze(o);
     const K = o.segments;
-    this.collector = new SegmentCollector(L);
+    this.collector = new SegmentCollector(L, o.maxParticles);
     this.ring = [];
     for (let k = 0; k < K; k++) this.ring.push(new SegmentSpectrum(L));
     this.ringCount = 0;

@@ -109,4 +109,23 @@ describe('TracksDetector', () => {
     const xi = crowded.summary().crowding!;
     expect(crowded.summary().confusionBound).toBeCloseTo((Math.PI * xi) / (1 + Math.PI * xi), 12);
   });
+
+  it('crowding from the pipeline\'s step sums (FrameSteps.sums) equals the pass over the steps', () => {
+    // The same frames twice: once hand-made (no sums: the detector sums dx² + dy² itself), once with the
+    // sums attached as the pipeline makes them; ξ must agree to rounding.
+    const plain = new TracksDetector();
+    const summed = new TracksDetector();
+    const source = gen(7, { particles: 60, field: 50 });
+    for (let f = 0; f < 1500; f++) {
+      const frame = source.next();
+      plain.push(frame, context);
+      let squares = 0;
+      for (let i = 0; i < frame.stepCount; i++) squares += frame.dx[i] * frame.dx[i] + frame.dy[i] * frame.dy[i];
+      const sums = { steps: frame.stepCount, squares, pairs: 0, products: 0, sumX: 0, sumY: 0, residualSquares: 0, residualSquaresX: 0, residualSquaresY: 0, residualPairs: 0, residualProducts: 0 };
+      summed.push({ ...frame, sums }, context);
+    }
+    const a = plain.summary().crowding!;
+    expect(a).toBeGreaterThan(0);
+    expect(summed.summary().crowding! / a).toBeCloseTo(1, 12);
+  });
 });

@@ -69,6 +69,8 @@ describe('VibrationDetector', () => {
       expect(() => new VibrationDetector({ alphaPerWindow: 1 })).toThrow(/alphaPerWindow/);
       expect(() => new VibrationDetector({ axes: 'diagonal' as never })).toThrow(/axes/);
       expect(() => new VibrationDetector({ minParticles: 2 })).toThrow(/minParticles/);
+      expect(() => new VibrationDetector({ maxParticles: 2 })).toThrow(/maxParticles/);
+      expect(() => new VibrationDetector({ maxParticles: 10.5 })).toThrow(/maxParticles/);
       expect(() => new VibrationDetector({ wanderBins: 1 })).toThrow(/wanderBins/);
       expect(() => new VibrationDetector({ stopAmplitudeRatio: -1 })).toThrow(RangeError);
     });
@@ -194,6 +196,33 @@ describe('VibrationDetector', () => {
       const peak = detector.summary().current[0];
       expect(peak).toBeDefined();
       expect(Math.abs(peak.frequency - 18)).toBeLessThanOrEqual(BIN_HZ);
+    });
+
+    it('push: with maxParticles M, the F-test is the one run on the first M particles alone, and still finds a 20 nm line', () => {
+      // The cap keeps the first M particles to step into each segment; the test is exact on any such subset
+      // (Shumway 1970, JASA 65:1527). Here all 40 step every frame, so the subset is the first 10 in frame order.
+      const capped = new VibrationDetector({ maxParticles: 10 });
+      const alone = new VibrationDetector();
+      const full = new VibrationDetector();
+      const stream = new SimulatedStream({ seed: 950, vibrationAmplitude: 0.02 }); // A_90 ≈ 5.8 nm at N = 40 (README), ≈ 12 nm at 10
+      const context = contextFor(stream.settings);
+      for (let i = 0; i < WINDOW_FRAMES + L; i++) {
+        const frame = stream.next();
+        capped.push(frame, context);
+        full.push(frame, context);
+        alone.push({ ...frame, count: 10, stepCount: Math.min(frame.stepCount, 10) }, context);
+      }
+      const a = capped.summary();
+      const b = alone.summary();
+      expect(a.windows).toBe(2);
+      expect(b.windows).toBe(2);
+      expect(a.spectrum.statistic).toEqual(b.spectrum.statistic);
+      expect(a.spectrum.threshold).toBe(b.spectrum.threshold);
+      // and it differs from the test on all 40 (more particles, more degrees of freedom)
+      expect(full.summary().spectrum.statistic).not.toEqual(a.spectrum.statistic);
+      const peak = a.current.find((p) => p.axis === 'x');
+      expect(peak).toBeDefined();
+      expect(Math.abs(peak!.frequency - 13.7)).toBeLessThanOrEqual(BIN_HZ);
     });
 
     it('push: one particle oscillating alone raises no alarm', () => {

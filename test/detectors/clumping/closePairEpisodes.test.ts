@@ -24,5 +24,22 @@ describe('ClosePairEpisodes', () => {
       episodes.see(1, 2, 4, 0.2, 1); episodes.sweep(4);
       expect(episodes.get(1, 2)?.frames).toBe(1);
     });
+
+    it('see(a, b) keeps pairs apart whatever the size of the ids, up to 2³² − 1, and near the 2²¹ key boundary', () => {
+      // Track ids are unsigned 32-bit (CONTRACTS): a pair key must not confuse two pairs
+      const episodes = new ClosePairEpisodes();
+      const big = 2 ** 32 - 1;
+      const edge = 2 ** 21;
+      const pairs: [number, number][] = [[1, 2], [2, 1 + 2 ** 32 - 2], [edge - 1, edge], [edge, edge + 1], [edge + 1, big], [big - 1, big]];
+      for (let slot = 0; slot < 3; slot++) {
+        for (const [a, b] of pairs) episodes.see(b, a, slot, slot * 0.05, 1);
+        if (slot < 2) episodes.see(edge, big, slot, slot * 0.05, 1); // this one only on two frames
+        episodes.sweep(slot);
+      }
+      expect(episodes.size).toBe(pairs.length);
+      for (const [a, b] of pairs) expect(episodes.get(a, b)).toMatchObject({ a, b, frames: 3 });
+      expect(episodes.get(edge, big)).toBeUndefined();
+      expect([...episodes.values()].map((e) => `${e.a}:${e.b}`).sort()).toEqual(pairs.map(([a, b]) => `${a}:${b}`).sort());
+    });
   });
 });

@@ -517,6 +517,7 @@ export class Pipeline {
     const lagCount = lags.length;
     const ringSize = this.ringSize;
     const trackStats = tracks.stats;
+    const trackWidth = tracks.trackWidth;
     const ring = tracks.ring;
     const ringZ = tracks.ringZ;
     const ringSlot = tracks.ringSlot;
@@ -572,7 +573,7 @@ export class Pipeline {
     let fastCount = 0;
     for (let p = 0; p < present; p++) {
       const index = this.trackIndex[p];
-      const base = index * width;
+      const base = index * trackWidth;
       const px = steps.x[p];
       const py = steps.y[p];
       const pz = this.stepZ[p];

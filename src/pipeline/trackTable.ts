@@ -1,4 +1,4 @@
-import { addStats, cveOffset, CVE_WIDTH, type StatsLayout } from './statsLayout.js';
+import { cveOffset, CVE_WIDTH, type StatsLayout } from './statsLayout.js';
 
 /** lastSlot of a track with no position yet (far below any real slot, so no step or lag matches). */
 export const NO_SLOT = -1_000_000_000;
@@ -33,8 +33,8 @@ export interface EndedTrack {
  * Ended tracks are folded into per-group totals (for the ensemble and the jackknife) and kept in
  * a bounded table (longest tracks win when it is full).
  *
- * Memory per live track: 8·(width + dims·ringSize) + 4·ringSize + ~80 bytes (bookkeeping, the dense
- * id table, the Map entry): ≈ 3.6 KiB at 2 axes, 16 lags, maxLag 128 (tools/bench/trackMemory.ts).
+ * Memory per live track: 8·(trackWidth + dims·ringSize) + 4·ringSize + ~80 bytes (bookkeeping, the
+ * dense id table, the Map entry): ≈ 2.8 KiB at 2 axes, 16 lags, maxLag 128 (tools/bench/trackMemory.ts).
  */
 export class TrackTable {
   readonly layout: StatsLayout;
@@ -42,6 +42,12 @@ export class TrackTable {
   readonly groups: number;
   readonly maxTable: number;
   capacity = 0;
+  /**
+   * Values per track in `stats`: the record's CVE part, the previous step and its slot
+   * (`layout.lagBase`, 21 at 2 axes). A track's lag sums are not kept per track (see `groupLag`).
+   */
+  readonly trackWidth: number;
+  /** Per track (row × trackWidth): the first `trackWidth` values of a statistics record. */
   stats: Float64Array = new Float64Array(0);
   /** x, y of each ring cell (see the class doc): offset 2·cell. */
   ring: Float64Array = new Float64Array(0);
@@ -91,6 +97,7 @@ export class TrackTable {
     this.ringSize = ringSize;
     this.groups = groups;
     this.maxTable = maxTable;
+    this.trackWidth = layout.lagBase;
     this.closed = new Float64Array(groups * layout.width);
     this.groupLag = new Float64Array(groups * layout.width);
     this.grow(256);
@@ -99,7 +106,7 @@ export class TrackTable {
   /** Tracks (ended and live) with at least one step. O(live tracks). */
   tracksWithSteps(): number {
     let n = this.endedWithSteps;
-    for (const index of this.live.values()) if (this.stats[index * this.layout.width] > 0) n++;
+    for (const index of this.live.values()) if (this.stats[index * this.trackWidth] > 0) n++;
     return n;
   }
 
@@ -127,10 +134,10 @@ export class TrackTable {
     }
     if (this.free.length === 0) this.grow(this.capacity * 2);
     const index = this.free.pop() as number;
-    const width = this.layout.width;
-    this.stats.fill(0, index * width, (index + 1) * width);
+    const trackWidth = this.trackWidth;
+    this.stats.fill(0, index * trackWidth, (index + 1) * trackWidth);
     // no previous step yet
-    this.stats[index * width + this.layout.previousOffset + 2 * this.layout.dims] = -2;
+    this.stats[index * trackWidth + this.layout.previousOffset + 2 * this.layout.dims] = -2;
     for (let cell = index; cell < this.ringSlot.length; cell += this.capacity) this.ringSlot[cell] = -1;
     this.lastSlot[index] = NO_SLOT;
     this.runStart[index] = NO_SLOT;
@@ -204,14 +211,14 @@ export class TrackTable {
 
   /**
    * Per-group totals over ended and live tracks: a (groups × width) array.
-   * O(live tracks × width).
+   * O(live tracks × trackWidth).
    */
   groupTotals(): Float64Array {
     const totals = Float64Array.from(this.closed);
     const width = this.layout.width;
     for (let i = 0; i < totals.length; i++) totals[i] += this.groupLag[i];
     for (const index of this.live.values()) {
-      addStats(this.layout, totals, this.group[index] * width, this.stats, index * width);
+      this.addTrackCve(totals, this.group[index] * width, index);
     }
     return totals;
   }
@@ -223,7 +230,7 @@ export class TrackTable {
 
   private end(id: number, index: number): EndedTrack {
     const row = this.snapshot(index);
-    addStats(this.layout, this.closed, this.group[index] * this.layout.width, this.stats, index * this.layout.width);
+    this.addTrackCve(this.closed, this.group[index] * this.layout.width, index);
     this.keep(row);
     this.forgetRecent(this.lastSlot[index]);
     this.live.delete(id);
@@ -232,8 +239,14 @@ export class TrackTable {
     return row;
   }
 
+  /** Adds track `index`'s CVE sums into the statistics record at `offset` of `target`. */
+  private addTrackCve(target: Float64Array, offset: number, index: number): void {
+    const source = index * this.trackWidth;
+    for (let i = 0; i < this.layout.previousOffset; i++) target[offset + i] += this.stats[source + i];
+  }
+
   private snapshot(index: number): EndedTrack {
-    const width = this.layout.width;
+    const width = this.trackWidth;
     const dims = this.layout.dims;
     const lastRing = 2 * this.ringCell(index, Math.max(0, this.lastSlot[index]));
     return {
@@ -303,9 +316,8 @@ export class TrackTable {
 
   private grow(capacity: number): void {
     const old = this.capacity;
-    const width = this.layout.width;
     const ringSize = this.ringSize;
-    const stats = new Float64Array(capacity * width);
+    const stats = new Float64Array(capacity * this.trackWidth);
     stats.set(this.stats);
     // Slot-major rings: each slot's block of `old` rows moves to its new place.
     const ring = new Float64Array(capacity * ringSize * 2);

@@ -40,9 +40,10 @@ export function trackMemory(tracks = 10_000): TrackMemory {
   const ringSize = lags[lags.length - 1] + 1;
   const layout = statsLayout(2, lags.length);
   const ringBytes = ringSize * (2 * 8 + 4); // x, y (z only in 3-D) and the slot
-  // stats record, lastSlot, runStart, mark, length, id (4 B each), firstT, lastT (8 B), group (2 B),
+  // the track's part of a stats record (CVE sums, previous step: lagBase values; no lag sums per
+  // track), lastSlot, runStart, mark, length, id (4 B each), firstT, lastT (8 B), group (2 B),
   // dense id table (4 B), the Map entry of the live table (~40 B, heap)
-  const otherBytes = layout.width * 8 + 5 * 4 + 2 * 8 + 2 + 4 + 40;
+  const otherBytes = layout.lagBase * 8 + 5 * 4 + 2 * 8 + 2 + 4 + 40;
   return { tracks, ringBytes, otherBytes, measuredPipelineOnly: measure(tracks, false), measuredWithDetectors: measure(tracks, true) };
 }
 

@@ -324,6 +324,8 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     // Per-track records: position, intensity history (and its frame-to-frame noise at baseline).
     // Each particle's record is kept for the steps below (one lookup per particle).
     const recordOf = this.recordOf;
+    let intensitySqDiff = 0;
+    let intensityDiffs = 0;
     for (let i = 0; i < n; i++) {
       const id = steps.trackId[i];
       let record = this.tracks.find(id, steps.trackRow[i]);
@@ -341,28 +343,36 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
             const latest = (record.intensityHead + record.logIntensity.length - 1) % record.logIntensity.length;
             if (record.intensitySlot[latest] === slot - 1) {
               const d = logI - record.logIntensity[latest];
-              this.intensitySqDiff += d * d;
-              this.intensityDiffs++;
+              intensitySqDiff += d * d;
+              intensityDiffs++;
             }
           }
           record.addIntensity(logI, slot);
         }
       }
     }
+    this.intensitySqDiff += intensitySqDiff;
+    this.intensityDiffs += intensityDiffs;
 
     // Steps: per-track CVE segments (and the pooled baseline CVE as a fallback D).
     const ratioCut = this.options.slowCut;
+    const inBaseline = !this.baselineDone;
+    // the frame's pooled sums in locals, added once after the loop (no field store per step)
+    let pooledSquares = 0;
+    let pooledSquareCount = 0;
+    let pooledCross = 0;
+    let pooledCrossCount = 0;
     for (let s = 0; s < steps.stepCount; s++) {
       const dx = steps.dx[s];
       const dy = steps.dy[s];
       if (!Number.isFinite(dx) || !Number.isFinite(dy)) continue;
       const record = recordOf[steps.stepParticle[s]];
-      if (!this.baselineDone) {
-        this.pooledSquares += dx * dx + dy * dy;
-        this.pooledSquareCount += 2;
+      if (inBaseline) {
+        pooledSquares += dx * dx + dy * dy;
+        pooledSquareCount += 2;
         if (record.lastStepSlot === slot - 1) {
-          this.pooledCross += dx * record.lastDx + dy * record.lastDy;
-          this.pooledCrossCount += 2;
+          pooledCross += dx * record.lastDx + dy * record.lastDy;
+          pooledCrossCount += 2;
         }
       }
       record.addStep(dx, dy, slot);
@@ -377,6 +387,12 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
           if (d < ratioCut * this.diffusionMonomer) this.tallies.slow++;
         }
       }
+    }
+    if (inBaseline) {
+      this.pooledSquares += pooledSquares;
+      this.pooledSquareCount += pooledSquareCount;
+      this.pooledCross += pooledCross;
+      this.pooledCrossCount += pooledCrossCount;
     }
 
     // Close pairs within r_c: a list of the pairs within r_c + skin kept across frames, measured

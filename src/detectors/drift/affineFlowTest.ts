@@ -75,21 +75,32 @@ export class AffineFlowTest {
       mv += dy[i];
     }
     mx /= n; my /= n; mu /= n; mv /= n;
+    // the frame's sums in locals, added to the window's once (no field store per step)
+    let sxx = 0, sxy = 0, syy = 0, sxu = 0, syu = 0, sxv = 0, syv = 0, suu = 0, svv = 0;
     for (let i = 0; i < n; i++) {
       const a = x0[i] - mx;
       const b = y0[i] - my;
       const u = dx[i] - mu;
       const v = dy[i] - mv;
-      this.sxx += a * a;
-      this.sxy += a * b;
-      this.syy += b * b;
-      this.sxu += a * u;
-      this.syu += b * u;
-      this.sxv += a * v;
-      this.syv += b * v;
-      this.suu += u * u;
-      this.svv += v * v;
+      sxx += a * a;
+      sxy += a * b;
+      syy += b * b;
+      sxu += a * u;
+      syu += b * u;
+      sxv += a * v;
+      syv += b * v;
+      suu += u * u;
+      svv += v * v;
     }
+    this.sxx += sxx;
+    this.sxy += sxy;
+    this.syy += syy;
+    this.sxu += sxu;
+    this.syu += syu;
+    this.sxv += sxv;
+    this.syv += syv;
+    this.suu += suu;
+    this.svv += svv;
     this.steps += n;
     this.frames++;
   }

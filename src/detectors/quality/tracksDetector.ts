@@ -2,7 +2,7 @@ import type { AlertLevel, Condition } from '../../alerts/condition.js';
 import type { Detector } from '../detector.js';
 import type { DetectorContext } from '../detectorContext.js';
 import type { FrameSteps } from '../frameSteps.js';
-import { TrackCache } from '../trackCache.js';
+import { WindowTrackTally } from './windowTrackTally.js';
 import { PageCusum } from '../drift/pageCusum.js';
 import { siegmundThreshold } from '../drift/siegmundThreshold.js';
 import { siegmundArl } from '../drift/siegmundArl.js';
@@ -98,9 +98,9 @@ export class TracksDetector implements Detector<TracksSummary> {
   // Steps made in the current window, by track id, and each track's length: the final length for
   // tracks that ended, the length so far for live ones. Counting only ended tracks would bias the
   // long-track fraction short (long tracks have not ended yet).
-  // One record per track seen stepping in the window: its steps there and its length (one Map
-  // probe per step).
-  private readonly windowTracks = new TrackCache<{ steps: number; length: number }>();
+  // Per track seen stepping in the window: its steps there and its latest length (typed arrays
+  // by track row; see WindowTrackTally).
+  private readonly windowTracks = new WindowTrackTally();
   private windowEnded = 0;
   private windowCrowdingSum = 0;
   private windowCrowdingFrames = 0;
@@ -175,20 +175,13 @@ export class TracksDetector implements Detector<TracksSummary> {
       }
     }
     if (Number.isNaN(this.firstFrameTime)) this.firstFrameTime = t;
+    const tally = this.windowTracks;
     for (let i = 0; i < steps.stepCount; i++) {
       const p = steps.stepParticle[i];
-      const id = steps.trackId[p];
-      const record = this.windowTracks.find(id, steps.trackRow[p]);
-      if (record) {
-        record.steps++;
-        record.length = steps.trackLength[p];
-      } else {
-        this.windowTracks.set(id, steps.trackRow[p], { steps: 1, length: steps.trackLength[p] });
-      }
+      tally.step(steps.trackId[p], steps.trackRow[p], steps.trackLength[p]);
     }
     for (let i = 0; i < steps.endedCount; i++) {
-      const record = this.windowTracks.get(steps.endedTrackId[i]);
-      if (record) record.length = steps.endedLength[i];
+      tally.end(steps.endedTrackId[i], steps.endedLength[i]);
       // A track that was already there on the first frame is left-censored (its true length is unknown and
       // longer): it would bias the length baseline short, so it is left out of the length statistics. The end is
       // reported one or more frames after the last position (the linker's gap allowance), hence the 3-frame margin.
@@ -337,12 +330,7 @@ export class TracksDetector implements Detector<TracksSummary> {
       epsilon = (context.localizationError * context.localizationError) / (context.diffusion * dt) - 2 * context.blur;
     }
     this.minimumSteps = minimumTrackSteps(Math.max(-0.5, epsilon), o.trackPrecision);
-    let windowSteps = 0;
-    let windowLong = 0;
-    for (const record of this.windowTracks.values()) {
-      windowSteps += record.steps;
-      if (record.length - 1 >= this.minimumSteps) windowLong += record.steps;
-    }
+    const { steps: windowSteps, longSteps: windowLong } = this.windowTracks.totals(this.minimumSteps);
     if (this.windowEnded >= o.minimumEndedTracks && windowSteps > 0) {
       this.longFraction = windowLong / windowSteps;
       const short = this.longFraction < o.minimumLongFraction;

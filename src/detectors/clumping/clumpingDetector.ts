@@ -13,7 +13,7 @@ import { ClosePairEpisodes } from './closePairEpisodes.js';
 import { countUpperTail } from './countUpperTail.js';
 import { intensityMixture } from './intensityMixture.js';
 import { segmentRelativeSe } from './segmentRelativeSe.js';
-import { INTENSITY_HISTORY, TrackRecord } from './trackRecord.js';
+import { INTENSITY_HISTORY, TrackRecords } from './trackRecord.js';
 
 /** Options of {@link ClumpingDetector}; every field has a default. */
 export interface ClumpingOptions {
@@ -214,10 +214,12 @@ function fmt(value: number, digits = 2): string {
 export class ClumpingDetector implements Detector<ClumpingSummary> {
   readonly name = 'clumping';
   private readonly options: ClumpingOptions;
-  private readonly tracks = new TrackCache<TrackRecord>();
-  // The record of each particle of the frame being pushed (reused; entries past the frame's count
-  // are stale and never read).
-  private readonly recordOf: TrackRecord[] = [];
+  // Track id → its record number in `records` (the per-track values, in typed arrays).
+  private readonly tracks = new TrackCache<number>();
+  private readonly records = new TrackRecords();
+  // The record number of each particle of the frame being pushed (reused; entries past the
+  // frame's count are stale and never read).
+  private recordOf = new Int32Array(256);
   private readonly episodes = new ClosePairEpisodes();
   private readonly scratch = new NearestNeighbourScratch();
   private pairKeys = new Float64Array(64);
@@ -322,32 +324,34 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     const intensity = steps.intensity;
 
     // Per-track records: position, intensity history (and its frame-to-frame noise at baseline).
-    // Each particle's record is kept for the steps below (one lookup per particle).
+    // Each particle's record number is kept for the steps below (one lookup per particle).
+    if (this.recordOf.length < n) this.recordOf = new Int32Array(Math.max(n, 2 * this.recordOf.length));
     const recordOf = this.recordOf;
+    const records = this.records;
     let intensitySqDiff = 0;
     let intensityDiffs = 0;
     for (let i = 0; i < n; i++) {
       const id = steps.trackId[i];
-      let record = this.tracks.find(id, steps.trackRow[i]);
-      if (!record) {
-        record = new TrackRecord(id, slot);
-        this.tracks.set(id, steps.trackRow[i], record);
+      let k = this.tracks.find(id, steps.trackRow[i]);
+      if (k === undefined) {
+        k = records.allocate(id, slot);
+        this.tracks.set(id, steps.trackRow[i], k);
       }
-      recordOf[i] = record;
-      record.lastSlot = slot;
+      recordOf[i] = k;
+      records.lastSlot[k] = slot;
       if (intensity) {
         const value = intensity[i];
         if (Number.isFinite(value) && value > 0) {
           const logI = Math.log(value);
-          if (!this.baselineDone && record.intensityCount > 0) {
-            const latest = (record.intensityHead + record.logIntensity.length - 1) % record.logIntensity.length;
-            if (record.intensitySlot[latest] === slot - 1) {
-              const d = logI - record.logIntensity[latest];
+          if (!this.baselineDone) {
+            const latest = records.latestIntensity(k);
+            if (latest !== undefined && latest.slot === slot - 1) {
+              const d = logI - latest.logIntensity;
               intensitySqDiff += d * d;
               intensityDiffs++;
             }
           }
-          record.addIntensity(logI, slot);
+          records.addIntensity(k, logI, slot);
         }
       }
     }
@@ -357,30 +361,34 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     // Steps: per-track CVE segments (and the pooled baseline CVE as a fallback D).
     const ratioCut = this.options.slowCut;
     const inBaseline = !this.baselineDone;
+    const segmentSteps = this.options.segmentSteps;
     // the frame's pooled sums in locals, added once after the loop (no field store per step)
     let pooledSquares = 0;
     let pooledSquareCount = 0;
     let pooledCross = 0;
     let pooledCrossCount = 0;
+    const lastStepSlot = records.lastStepSlot;
+    const lastDx = records.lastDx;
+    const lastDy = records.lastDy;
     for (let s = 0; s < steps.stepCount; s++) {
       const dx = steps.dx[s];
       const dy = steps.dy[s];
       if (!Number.isFinite(dx) || !Number.isFinite(dy)) continue;
-      const record = recordOf[steps.stepParticle[s]];
+      const k = recordOf[steps.stepParticle[s]];
       if (inBaseline) {
         pooledSquares += dx * dx + dy * dy;
         pooledSquareCount += 2;
-        if (record.lastStepSlot === slot - 1) {
-          pooledCross += dx * record.lastDx + dy * record.lastDy;
+        if (lastStepSlot[k] === slot - 1) {
+          pooledCross += dx * lastDx[k] + dy * lastDy[k];
           pooledCrossCount += 2;
         }
       }
-      record.addStep(dx, dy, slot);
-      if (record.segmentSteps >= this.options.segmentSteps) {
-        const d = record.segmentDiffusion(this.frameInterval);
-        record.resetSegment();
+      records.addStep(k, dx, dy, slot);
+      if (records.segmentSteps[k] >= segmentSteps) {
+        const d = records.segmentDiffusion(k, this.frameInterval);
+        records.resetSegment(k);
         if (!Number.isFinite(d)) continue;
-        if (!this.baselineDone) {
+        if (inBaseline) {
           if (this.baselineSegments.length < 100000) this.baselineSegments.push(d);
         } else {
           this.tallies.segments++;
@@ -431,16 +439,19 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     // Ended tracks: merge candidates beside a continuing track; then forget the record.
     for (let e = 0; e < steps.endedCount; e++) {
       const id = steps.endedTrackId[e];
-      const record = this.tracks.get(id);
+      const k = this.tracks.get(id);
+      if (k === undefined) continue;
       this.tracks.delete(id);
-      if (!record || !intensity || !this.baselineDone) continue;
-      const partner = this.nearestContinuing(steps, id, steps.endedX[e], steps.endedY[e], record.lastSlot);
+      const split = records.lastSlot[k];
+      records.release(k); // its values stay readable until a record is next allocated (next frame)
+      if (!intensity || !this.baselineDone) continue;
+      const partner = this.nearestContinuing(steps, id, steps.endedX[e], steps.endedY[e], split);
       if (partner < 0) continue;
       // B's brightness before the split is taken now (the ring will have moved on by the decision)
       const partnerRecord = this.tracks.get(partner);
-      const nBefore = partnerRecord ? partnerRecord.intensitiesAround(record.lastSlot, false, 2 * this.options.mergeWindowFrames, this.before) : 0;
+      const nBefore = partnerRecord !== undefined ? records.intensitiesAround(partnerRecord, split, false, 2 * this.options.mergeWindowFrames, this.before) : 0;
       if (nBefore < this.options.mergeWindowFrames) continue;
-      this.pending.push({ a: id, b: partner, split: record.lastSlot, t: steps.t, before: median(this.before, nBefore), beforeCount: nBefore });
+      this.pending.push({ a: id, b: partner, split, t: steps.t, before: median(this.before, nBefore), beforeCount: nBefore });
     }
     if (this.pending.length > 0) this.evaluateMerges(slot, steps.t);
 
@@ -472,7 +483,11 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     this.framesInBlock = 0;
     this.blockIndex++;
     // Housekeeping: forget tracks not seen for a long time (ended without notice).
-    for (const [id, record] of this.tracks.entries()) if (slot - record.lastSlot > 4 * this.blockFrames) this.tracks.delete(id);
+    for (const [id, k] of this.tracks.entries()) {
+      if (slot - records.lastSlot[k] <= 4 * this.blockFrames) continue;
+      this.tracks.delete(id);
+      records.release(k);
+    }
     if (intensity) this.takeIntensityPopulation(slot, steps.t);
     if (!this.baselineDone) {
       if (this.blockIndex >= this.options.baselineBlocks) this.finishBaseline(context);
@@ -493,16 +508,18 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
    */
   private takeIntensityPopulation(slot: number, t: number): void {
     let n = 0;
-    for (const record of this.tracks.values()) {
-      if (slot - record.lastSlot > this.blockFrames || record.intensityCount < POPULATION_MIN_READINGS) continue;
+    const records = this.records;
+    for (const k of this.tracks.values()) {
+      const count = records.intensityCount[k];
+      if (slot - records.lastSlot[k] > this.blockFrames || count < POPULATION_MIN_READINGS) continue;
       if (n >= this.populationScratch.length) {
         const grown = new Float64Array(2 * this.populationScratch.length);
         grown.set(this.populationScratch);
         this.populationScratch = grown;
       }
       // the ring's first intensityCount entries are filled (all of it once full); quickselect on a copy
-      this.medianScratch.set(record.logIntensity.subarray(0, record.intensityCount));
-      this.populationScratch[n++] = medianInPlace(this.medianScratch, record.intensityCount);
+      this.medianScratch.set(records.intensities(k));
+      this.populationScratch[n++] = medianInPlace(this.medianScratch, count);
     }
     this.populationCount = n;
     this.populationTime = t;
@@ -611,8 +628,8 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
       const ddy = steps.y[i] - y;
       const d2 = ddx * ddx + ddy * ddy;
       if (d2 > best) continue;
-      const record = this.tracks.get(other);
-      if (!record || record.firstSlot >= split) continue;
+      const k = this.tracks.get(other);
+      if (k === undefined || this.records.firstSlot[k] >= split) continue;
       best = d2;
       bestId = other;
     }
@@ -627,10 +644,10 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     const hold = Math.max(w, this.persistence);
     const keep: PendingMerge[] = [];
     for (const candidate of this.pending) {
-      const record = this.tracks.get(candidate.b);
-      if (!record) continue; // partner gone: no lasting merge
+      const k = this.tracks.get(candidate.b);
+      if (k === undefined) continue; // partner gone: no lasting merge
       if (slot - candidate.split < hold) { keep.push(candidate); continue; }
-      const nAfter = record.intensitiesAround(slot - w, true, w, this.after);
+      const nAfter = this.records.intensitiesAround(k, slot - w, true, w, this.after);
       if (nAfter < w) continue;
       const jump = median(this.after, nAfter) - candidate.before;
       const sd = this.intensityNoise * Math.sqrt(MEDIAN_VARIANCE_FACTOR * (1 / nAfter + 1 / candidate.beforeCount));
@@ -638,7 +655,7 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
       const ratio = Math.exp(jump);
       const [low, high] = this.options.mergeRatioRange;
       this.tallies.mergeTests++;
-      if (ratio < low || ratio > high || record.merged) continue;
+      if (ratio < low || ratio > high || this.records.merged[k] === 1) continue;
       const p = normalUpperTail(z);
       if (p < this.tallies.bestMergeP) {
         this.tallies.bestMergeP = p;
@@ -678,8 +695,8 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
       this.look('merges', hit, significant);
       pValues.push(p);
       if (hit && tallies.bestMerge) {
-        const record = this.tracks.get(tallies.bestMerge.b);
-        if (record) record.merged = true;
+        const k = this.tracks.get(tallies.bestMerge.b);
+        if (k !== undefined) this.records.merged[k] = 1;
         this.merges.unshift(tallies.bestMerge);
         if (this.merges.length > o.maxListed) this.merges.pop();
       }
@@ -730,7 +747,10 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     let heldPairs = 0;
     for (const episode of this.episodes.values()) if (episode.frames >= this.persistence) heldPairs++;
     let mergedPresent = 0;
-    for (let i = 0; i < steps.count; i++) if (this.tracks.find(steps.trackId[i], steps.trackRow[i])?.merged) mergedPresent++;
+    for (let i = 0; i < steps.count; i++) {
+      const k = this.tracks.find(steps.trackId[i], steps.trackRow[i]);
+      if (k !== undefined && this.records.merged[k] === 1) mergedPresent++;
+    }
     // A merge stays in force while its brightened track is in view, a persistent pair while it is
     // held (once something was raised: the cluster is still there); every warn onset still needs
     // a fresh significant look, so the Bonferroni bound holds.

@@ -1,3 +1,5 @@
+import { grownArray } from '../../stats/grownArray.js';
+
 /**
  * Per-track tallies over one window, for the tracks detector's long-track fraction: each track's
  * steps in the window and its latest length. Kept in typed arrays indexed by the pipeline's track
@@ -103,11 +105,7 @@ export class WindowTrackTally {
       }
     } else {
       this.rowGeneration[row] = this.generation;
-      if (this.usedCount === this.usedRows.length) {
-        const used = new Int32Array(2 * this.usedRows.length);
-        used.set(this.usedRows);
-        this.usedRows = used;
-      }
+      if (this.usedCount === this.usedRows.length) this.usedRows = grownArray(this.usedRows, 2 * this.usedRows.length);
       this.usedRows[this.usedCount++] = row;
     }
     this.rowId[row] = id;
@@ -119,18 +117,10 @@ export class WindowTrackTally {
   private grow(row: number): void {
     let size = this.rowId.length;
     while (size <= row) size *= 2;
-    const rowId = new Float64Array(size).fill(-1);
-    rowId.set(this.rowId);
-    const rowGeneration = new Int32Array(size).fill(-1);
-    rowGeneration.set(this.rowGeneration);
-    const rowSteps = new Int32Array(size);
-    rowSteps.set(this.rowSteps);
-    const rowLength = new Float64Array(size);
-    rowLength.set(this.rowLength);
-    this.rowId = rowId;
-    this.rowGeneration = rowGeneration;
-    this.rowSteps = rowSteps;
-    this.rowLength = rowLength;
+    this.rowId = grownArray(this.rowId, size, -1);
+    this.rowGeneration = grownArray(this.rowGeneration, size, -1);
+    this.rowSteps = grownArray(this.rowSteps, size);
+    this.rowLength = grownArray(this.rowLength, size);
   }
 }
 

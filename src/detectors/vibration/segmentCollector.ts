@@ -1,3 +1,4 @@
+import { grownArray } from '../../stats/grownArray.js';
 import type { FrameSteps } from '../frameSteps.js';
 
 /**
@@ -186,15 +187,9 @@ export class SegmentCollector {
     if (trackRow >= this.seenId.length) {
       let size = this.seenId.length;
       while (size <= trackRow) size *= 2;
-      const seenId = new Float64Array(size).fill(-1);
-      seenId.set(this.seenId);
-      const seenRow = new Int32Array(size);
-      seenRow.set(this.seenRow);
-      const seenGeneration = new Int32Array(size).fill(-1);
-      seenGeneration.set(this.seenGeneration);
-      this.seenId = seenId;
-      this.seenRow = seenRow;
-      this.seenGeneration = seenGeneration;
+      this.seenId = grownArray(this.seenId, size, -1);
+      this.seenRow = grownArray(this.seenRow, size);
+      this.seenGeneration = grownArray(this.seenGeneration, size, -1);
     }
     this.seenId[trackRow] = id;
     this.seenRow[trackRow] = row;

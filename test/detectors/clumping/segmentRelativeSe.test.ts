@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { segmentRelativeSe } from '../../../src/detectors/clumping/segmentRelativeSe.js';
-import { TrackRecord } from '../../../src/detectors/clumping/trackRecord.js';
+import { TrackRecords } from '../../../src/detectors/clumping/trackRecord.js';
 import { Random } from '../../../src/stats/random.js';
 
 describe('segmentRelativeSe', () => {
@@ -15,7 +15,7 @@ describe('segmentRelativeSe', () => {
   });
 });
 
-describe('TrackRecord', () => {
+describe('TrackRecords', () => {
   describe('#segmentDiffusion', () => {
     it('segmentDiffusion() is unbiased and its SD matches segmentRelativeSe at x = 1, N = 100', () => {
       // detectors.md §6d [V]: x = 1, N = 100: SD 0.230 simulated against 0.247 predicted (2-D CVE,
@@ -23,18 +23,20 @@ describe('TrackRecord', () => {
       const random = new Random(8);
       const D = 0.4, dt = 0.05, sigma = Math.sqrt(1 * D * dt), reps = 3000;
       const values: number[] = [];
-      for (let k = 0; k < reps; k++) {
-        const record = new TrackRecord(1, 0);
+      const records = new TrackRecords(4); // grows as records are taken: exercises the copy
+      for (let rep = 0; rep < reps; rep++) {
+        const k = records.allocate(rep + 1, 0);
         let tx = 0, ty = 0;
         let ox = sigma * random.normal(), oy = sigma * random.normal();
         for (let s = 1; s <= 100; s++) {
           tx += Math.sqrt(2 * D * dt) * random.normal();
           ty += Math.sqrt(2 * D * dt) * random.normal();
           const nx = tx + sigma * random.normal(), ny = ty + sigma * random.normal();
-          record.addStep(nx - ox, ny - oy, s);
+          records.addStep(k, nx - ox, ny - oy, s);
           ox = nx; oy = ny;
         }
-        values.push(record.segmentDiffusion(dt) / D);
+        values.push(records.segmentDiffusion(k, dt) / D);
+        if (rep % 2 === 1) records.release(k); // half are given back and handed out again
       }
       const mean = values.reduce((a, b) => a + b, 0) / reps;
       const sd = Math.sqrt(values.reduce((a, b) => a + (b - mean) ** 2, 0) / (reps - 1));
@@ -44,28 +46,43 @@ describe('TrackRecord', () => {
     });
 
     it('segmentDiffusion() is NaN without a cross product and resetSegment() starts afresh', () => {
-      const record = new TrackRecord(4, 10);
-      record.addStep(0.1, 0.1, 11);
-      expect(record.segmentDiffusion(0.05)).toBeNaN();
-      record.addStep(0.1, 0.1, 13); // across a gap: no cross product
-      expect(record.segmentDiffusion(0.05)).toBeNaN();
-      record.addStep(0.1, -0.1, 14);
-      expect(record.segmentDiffusion(0.05)).toBeCloseTo((3 * 0.02) / (2 * 0.05 * 6) + 0 / (0.05 * 2), 12);
-      record.resetSegment();
-      expect(record.segmentSteps).toBe(0);
+      const records = new TrackRecords();
+      const other = records.allocate(3, 0);
+      records.addStep(other, 5, 5, 1);
+      records.addStep(other, 5, 5, 2);
+      records.release(other); // a reused record starts empty
+      const k = records.allocate(4, 10);
+      expect(k).toBe(other);
+      records.addStep(k, 0.1, 0.1, 11);
+      expect(records.segmentDiffusion(k, 0.05)).toBeNaN();
+      records.addStep(k, 0.1, 0.1, 13); // across a gap: no cross product
+      expect(records.segmentDiffusion(k, 0.05)).toBeNaN();
+      records.addStep(k, 0.1, -0.1, 14);
+      expect(records.segmentDiffusion(k, 0.05)).toBeCloseTo((3 * 0.02) / (2 * 0.05 * 6) + 0 / (0.05 * 2), 12);
+      records.resetSegment(k);
+      expect(records.segmentSteps[k]).toBe(0);
     });
   });
 
   describe('#intensitiesAround', () => {
     it('intensitiesAround(split) splits the ring at the slot, latest first before, earliest first after', () => {
-      const record = new TrackRecord(2, 0);
-      for (let s = 0; s < 60; s++) record.addIntensity(s, s); // ring of 48 keeps slots 12..59
+      const records = new TrackRecords(2);
+      const before = records.allocate(1, 0);
+      records.addIntensity(before, 100, 0);
+      const k = records.allocate(2, 0);
+      for (let s = 0; s < 60; s++) {
+        records.addIntensity(k, s, s); // ring of 48 keeps slots 12..59
+        records.allocate(100 + s, s); // growth copies the rings on the way
+      }
       const out = new Float64Array(10);
-      expect(record.intensitiesAround(30, false, 3, out)).toBe(3);
+      expect(records.intensitiesAround(k, 30, false, 3, out)).toBe(3);
       expect(Array.from(out.subarray(0, 3))).toEqual([30, 29, 28]);
-      expect(record.intensitiesAround(30, true, 3, out)).toBe(3);
+      expect(records.intensitiesAround(k, 30, true, 3, out)).toBe(3);
       expect(Array.from(out.subarray(0, 3))).toEqual([31, 32, 33]);
-      expect(record.intensitiesAround(5, false, 3, out)).toBe(0);
+      expect(records.intensitiesAround(k, 5, false, 3, out)).toBe(0);
+      expect(records.latestIntensity(k)).toEqual({ logIntensity: 59, slot: 59 });
+      expect(Array.from(records.intensities(before))).toEqual([100]);
+      expect(records.latestIntensity(records.allocate(999, 70))).toBeUndefined();
     });
   });
 });

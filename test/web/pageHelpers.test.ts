@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import type { Report } from '../../src/report.js';
 import { splitToken } from '../../web/src/accessToken.js';
 import { splitRemedy, worstOpenLevel } from '../../web/src/alertStrip.js';
-import { clumpedPairs } from '../../web/src/clumpedPairs.js';
+import { clumpedPairs, dimerFractionText } from '../../web/src/clumpedPairs.js';
 import { frameScheduler } from '../../web/src/frameScheduler.js';
 import { shortcutFor } from '../../web/src/shortcutKeys.js';
 import { tagMarksOf } from '../../web/src/tagMarks.js';
@@ -57,6 +57,19 @@ describe('clumpedPairs', () => {
       ],
     } as unknown as Report;
     expect(clumpedPairs(report)).toEqual([[3, 7], [4, 528], [11, 32]]);
+  });
+});
+
+describe('dimerFractionText', () => {
+  it('gives both dimer-fraction estimates with their 95 % CIs, either alone, or nothing before there is one', () => {
+    const with_ = (clumping: Record<string, unknown>) => ({ detectors: { clumping }, alerts: [] }) as unknown as Report;
+    expect(dimerFractionText(with_({ dimerFraction: { value: 0.123, ci95: [0.05, 0.21] }, intensityDimerFraction: { value: 0.1, ci95: [0.04, 0.18], tracks: 412 } })))
+      .toBe('dimer fraction 0.123 [0.05, 0.21] by slow tracks; 0.1 [0.04, 0.18] by brightness (412 tracks) (95 % CI)');
+    expect(dimerFractionText(with_({ dimerFraction: null, intensityDimerFraction: { value: 0.3, ci95: [0.2, 0.4], tracks: 50 } })))
+      .toBe('dimer fraction 0.3 [0.2, 0.4] by brightness (50 tracks) (95 % CI)');
+    expect(dimerFractionText(with_({ dimerFraction: { value: 0, ci95: [0, 0.02] }, intensityDimerFraction: null }))).toBe('dimer fraction 0 [0, 0.02] by slow tracks (95 % CI)');
+    expect(dimerFractionText(with_({ dimerFraction: null, intensityDimerFraction: null }))).toBe('');
+    expect(dimerFractionText({ detectors: {}, alerts: [] } as unknown as Report)).toBe('');
   });
 });
 

@@ -1,4 +1,5 @@
 import type { Report } from '../../src/report.js';
+import { fmt } from './formatNumber.js';
 
 /**
  * Pairs of track ids the clumping detector flagged, from `report.detectors.clumping`
@@ -39,4 +40,29 @@ export function clumpedPairs(report: Report): [number, number][] {
     take(alert.detail?.merges);
   }
   return out;
+}
+
+/**
+ * The clumping detector's two dimer-fraction estimates, for the field map's note: by slow
+ * tracks (`dimerFraction`) and by brightness (`intensityDimerFraction`), each with its 95 % CI;
+ * '' when neither exists yet (both need the baseline blocks; brightness needs intensities). O(1).
+ *
+ * @example
+ * dimerFractionText(report) // → 'dimer fraction 0.12 [0.05, 0.21] by slow tracks; 0.1 [0.04, 0.18] by brightness (412 tracks)'
+ */
+export function dimerFractionText(report: Report): string {
+  const c = (report.detectors as { clumping?: Record<string, unknown> } | undefined)?.clumping;
+  if (!c) return '';
+  const estimate = (v: unknown): { value: number; ci95: [number, number]; tracks?: number } | null => {
+    if (!v || typeof v !== 'object') return null;
+    const e = v as { value?: unknown; ci95?: unknown; tracks?: unknown };
+    if (typeof e.value !== 'number' || !Array.isArray(e.ci95) || e.ci95.length !== 2) return null;
+    return { value: e.value, ci95: [Number(e.ci95[0]), Number(e.ci95[1])], tracks: typeof e.tracks === 'number' ? e.tracks : undefined };
+  };
+  const slow = estimate(c.dimerFraction);
+  const bright = estimate(c.intensityDimerFraction);
+  const parts: string[] = [];
+  if (slow) parts.push(`${fmt(slow.value)} [${fmt(slow.ci95[0])}, ${fmt(slow.ci95[1])}] by slow tracks`);
+  if (bright) parts.push(`${fmt(bright.value)} [${fmt(bright.ci95[0])}, ${fmt(bright.ci95[1])}] by brightness${bright.tracks !== undefined ? ` (${bright.tracks} tracks)` : ''}`);
+  return parts.length === 0 ? '' : `dimer fraction ${parts.join('; ')} (95 % CI)`;
 }

@@ -2,7 +2,7 @@ import type uPlot from 'uplot';
 import type { AlertMessage, RunState, ServerToDashboardMessage } from '../../server/protocol.js';
 import type { Alert } from '../../src/report.js';
 import { renderAlertStrip } from './alertStrip.js';
-import { clumpedPairs } from './clumpedPairs.js';
+import { clumpedPairs, dimerFractionText } from './clumpedPairs.js';
 import { frameScheduler } from './frameScheduler.js';
 import { liveSocket, type LinkState, type LiveSocket } from './liveSocket.js';
 import { msdColumns } from './msdColumns.js';
@@ -277,7 +277,8 @@ export function showRunView(
           ctx.stroke();
         }
       }
-      notes.field.textContent = `${latest.x.length} particles at t = ${fmt(latest.t)} s, trails of ${frames.length} frames; clumped pairs flagged: ${pairs.length}${pairs.length ? ` (${shown} in view, ringed)` : ''}`;
+      const dimers = dimerFractionText(r);
+      notes.field.textContent = `${latest.x.length} particles at t = ${fmt(latest.t)} s, trails of ${frames.length} frames; clumped pairs flagged: ${pairs.length}${pairs.length ? ` (${shown} in view, ringed)` : ''}${dimers ? `; ${dimers}` : ''}`;
       return latest.x.length;
     });
 

@@ -388,17 +388,20 @@ export class DriftDetector implements Detector<DriftSummary> {
       this.bufMed = new Float64Array(size);
     }
     let n = 0;
+    const { dx, dy, x, y, stepParticle, trackId } = steps;
+    const bufDx = this.bufDx, bufDy = this.bufDy, bufX0 = this.bufX0, bufY0 = this.bufY0;
+    const fiducials = this.fiducials;
     for (let i = 0; i < count; i++) {
-      const a = steps.dx[i];
-      const b = steps.dy[i];
+      const a = dx[i];
+      const b = dy[i];
       if (!Number.isFinite(a) || !Number.isFinite(b)) continue;
-      const p = steps.stepParticle[i];
-      if (this.fiducials && !this.fiducials.has(steps.trackId[p])) continue;
-      this.bufDx[n] = a;
-      this.bufDy[n] = b;
+      const p = stepParticle[i];
+      if (fiducials && !fiducials.has(trackId[p])) continue;
+      bufDx[n] = a;
+      bufDy[n] = b;
       // Start position of the step: independent of the step's own noise.
-      this.bufX0[n] = steps.x[p] - a;
-      this.bufY0[n] = steps.y[p] - b;
+      bufX0[n] = x[p] - a;
+      bufY0[n] = y[p] - b;
       n++;
     }
     return n;

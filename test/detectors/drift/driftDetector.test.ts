@@ -223,6 +223,48 @@ describe('DriftDetector', () => {
       expect(low).toBeLessThan(0.05);
       expect(high).toBeGreaterThan(0.05);
     });
+
+    it('#result: the gradient and F agree with the two-pass least-squares fit, 10 mm from the origin, under a rotation', () => {
+      // Reference: the normal equations formed from sums centred per frame in a second pass (common practice, no source)
+      const random = new Random(4);
+      const n = 200;
+      const frames: { x0: Float64Array; y0: Float64Array; dx: Float64Array; dy: Float64Array }[] = [];
+      const test = new AffineFlowTest();
+      for (let f = 0; f < 20; f++) {
+        const x0 = new Float64Array(n), y0 = new Float64Array(n), dx = new Float64Array(n), dy = new Float64Array(n);
+        for (let i = 0; i < n; i++) {
+          const px = 100 * random.uniform(), py = 100 * random.uniform();
+          x0[i] = 10_000 + px; y0[i] = -10_000 + py;
+          // rotation ω = 2e-4 per frame about the field's centre, plus a common step and noise (µm)
+          dx[i] = -2e-4 * (py - 50) + 0.01 + 0.03 * random.normal();
+          dy[i] = 2e-4 * (px - 50) - 0.02 + 0.03 * random.normal();
+        }
+        frames.push({ x0, y0, dx, dy });
+        test.addFrame(n, x0, y0, dx, dy);
+      }
+      const S = { xx: 0, xy: 0, yy: 0, xu: 0, yu: 0, xv: 0, yv: 0, uu: 0, vv: 0 };
+      for (const { x0, y0, dx, dy } of frames) {
+        const mean = (a: Float64Array) => a.reduce((t, v) => t + v, 0) / n;
+        const [mx, my, mu, mv] = [mean(x0), mean(y0), mean(dx), mean(dy)];
+        for (let i = 0; i < n; i++) {
+          const a = x0[i] - mx, b = y0[i] - my, u = dx[i] - mu, v = dy[i] - mv;
+          S.xx += a * a; S.xy += a * b; S.yy += b * b; S.xu += a * u; S.yu += b * u; S.xv += a * v; S.yv += b * v; S.uu += u * u; S.vv += v * v;
+        }
+      }
+      const det = S.xx * S.yy - S.xy * S.xy;
+      const axy = (S.xx * S.yu - S.xy * S.xu) / det;
+      const ayx = (S.yy * S.xv - S.xy * S.yv) / det;
+      const axx = (S.yy * S.xu - S.xy * S.yu) / det;
+      const ayy = (S.xx * S.yv - S.xy * S.xv) / det;
+      const explained = axx * S.xu + axy * S.yu + ayx * S.xv + ayy * S.yv;
+      const df2 = 2 * (20 * n - 20) - 4;
+      const f = explained / 4 / ((S.uu + S.vv - explained) / df2);
+      const result = test.result(1)!;
+      expect(result.f / f).toBeCloseTo(1, 9);
+      expect(result.rotation / (0.5 * (ayx - axy))).toBeCloseTo(1, 9);
+      expect(result.rotation).toBeCloseTo(2e-4, 4); // the truth within 5e-5, about 3 SE (0.03/(29·√4000) ≈ 1.6e-5)
+      expect(result.pattern).toBe('rotation');
+    });
   });
 
   describe('#summary', () => {

@@ -344,9 +344,9 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
         if (Number.isFinite(value) && value > 0) {
           const logI = Math.log(value);
           if (!this.baselineDone) {
-            const latest = records.latestIntensity(k);
-            if (latest !== undefined && latest.slot === slot - 1) {
-              const d = logI - latest.logIntensity;
+            const latest = records.latestIntensityAt(k);
+            if (latest >= 0 && records.intensitySlot[latest] === slot - 1) {
+              const d = logI - records.logIntensity[latest];
               intensitySqDiff += d * d;
               intensityDiffs++;
             }

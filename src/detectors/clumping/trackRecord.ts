@@ -119,11 +119,13 @@ export class TrackRecords {
     this.segmentSteps[k] = 0;
   }
 
-  /** The latest log intensity of record `k` and its slot, or undefined when it has none. */
-  latestIntensity(k: number): { logIntensity: number; slot: number } | undefined {
-    if (this.intensityCount[k] === 0) return undefined;
-    const at = k * INTENSITY_HISTORY + ((this.intensityHead[k] + INTENSITY_HISTORY - 1) % INTENSITY_HISTORY);
-    return { logIntensity: this.logIntensity[at], slot: this.intensitySlot[at] };
+  /**
+   * Where record `k`'s latest log intensity is in `logIntensity` and `intensitySlot`, or −1 when
+   * it has none (an index, not an object: this is read per particle per frame).
+   */
+  latestIntensityAt(k: number): number {
+    if (this.intensityCount[k] === 0) return -1;
+    return k * INTENSITY_HISTORY + ((this.intensityHead[k] + INTENSITY_HISTORY - 1) % INTENSITY_HISTORY);
   }
 
   /** Record ln I at `slot` in record `k`. O(1) (the first call allocates the rings). */

@@ -12,7 +12,7 @@ import type { FrameSteps } from '../frameSteps.js';
  * At most `maxRows` particles are kept per segment: the first ones (in the frame's order) to
  * make a step into the segment's first slot. The choice looks at no step value, so the F-test
  * stays exact on the subset (Shumway 1970, JASA 65:1527: any set of independent series); only
- * its sensitivity falls, as about √(maxRows/N) in amplitude (see the README's table).
+ * its sensitivity falls: the smallest line found grows as about √(N/maxRows) (see the README).
  *
  * Storage: one row of `length` steps per axis per kept particle, in `Float64Array`s that grow
  * by doubling up to `maxRows` rows (at most 16·maxRows·length bytes: 1 MiB at 256 × 256), and

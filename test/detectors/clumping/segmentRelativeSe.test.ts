@@ -80,9 +80,10 @@ describe('TrackRecords', () => {
       expect(records.intensitiesAround(k, 30, true, 3, out)).toBe(3);
       expect(Array.from(out.subarray(0, 3))).toEqual([31, 32, 33]);
       expect(records.intensitiesAround(k, 5, false, 3, out)).toBe(0);
-      expect(records.latestIntensity(k)).toEqual({ logIntensity: 59, slot: 59 });
+      const latest = records.latestIntensityAt(k);
+      expect([records.logIntensity[latest], records.intensitySlot[latest]]).toEqual([59, 59]);
       expect(Array.from(records.intensities(before))).toEqual([100]);
-      expect(records.latestIntensity(records.allocate(999, 70))).toBeUndefined();
+      expect(records.latestIntensityAt(records.allocate(999, 70))).toBe(-1);
     });
   });
 });

@@ -334,7 +334,7 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
       const id = steps.trackId[i];
       let k = this.tracks.find(id, steps.trackRow[i]);
       if (k === undefined) {
-        k = records.allocate(id, slot);
+        k = records.allocate(slot);
         this.tracks.set(id, steps.trackRow[i], k);
       }
       recordOf[i] = k;

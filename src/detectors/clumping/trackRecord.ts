@@ -14,22 +14,20 @@ export const INTENSITY_HISTORY = 48;
  * (2014, PRE 89:022726), per axis and pooled over x and y:
  * D̂ = Σd²/(2Δt·n_sq) + Σd_k·d_{k+1}/(Δt·n_cross).
  *
- * Memory: 85 bytes per record, plus 768 bytes (2 × 48 × 8) per record once any intensity has been
+ * Memory: 77 bytes per record, plus 768 bytes (2 × 48 × 8) per record once any intensity has been
  * added (the rings are allocated for every record at the first intensity: inputs without
  * intensity pay nothing for them). Storage grows by doubling; the arrays are replaced when it
  * does, so read them again after `allocate`.
  *
  * @example
  * const records = new TrackRecords();
- * const k = records.allocate(7, 0);
+ * const k = records.allocate(0); // a track first seen at slot 0
  * records.addStep(k, 0.1, -0.05, 1); records.addStep(k, 0.02, 0.1, 2);
  * records.segmentSteps[k]; // → 2
  */
 export class TrackRecords {
   /** Records the arrays hold. */
   capacity = 0;
-  /** Track id of each record. */
-  id: Float64Array = new Float64Array(0);
   /** Slot where the record began, and the last slot the track was seen in. */
   firstSlot: Float64Array = new Float64Array(0);
   lastSlot: Float64Array = new Float64Array(0);
@@ -51,23 +49,15 @@ export class TrackRecords {
   intensityCount: Int32Array = new Int32Array(0);
   intensityHead: Int32Array = new Int32Array(0);
   private readonly free: number[] = [];
-  private used = 0;
 
   constructor(capacity = 256) {
     this.grow(capacity);
   }
 
-  /** Records in use. */
-  get size(): number {
-    return this.used;
-  }
-
-  /** A fresh record for track `id`, first seen at `slot`; returns its number. O(1) amortised. */
-  allocate(id: number, slot: number): number {
+  /** A fresh record for a track first seen at `slot`; returns its number. O(1) amortised. */
+  allocate(slot: number): number {
     if (this.free.length === 0) this.grow(2 * this.capacity);
     const k = this.free.pop() as number;
-    this.used++;
-    this.id[k] = id;
     this.firstSlot[k] = slot;
     this.lastSlot[k] = slot;
     this.lastStepSlot[k] = -1;
@@ -87,7 +77,6 @@ export class TrackRecords {
   /** Gives record `k` back (its values stay readable until it is handed out again). */
   release(k: number): void {
     this.free.push(k);
-    this.used--;
   }
 
   /** Add a one-frame step (µm) made into `slot` to record `k`. O(1). */
@@ -170,7 +159,6 @@ export class TrackRecords {
 
   private grow(capacity: number): void {
     const old = this.capacity;
-    this.id = grownArray(this.id, capacity);
     this.firstSlot = grownArray(this.firstSlot, capacity);
     this.lastSlot = grownArray(this.lastSlot, capacity);
     this.lastStepSlot = grownArray(this.lastStepSlot, capacity);

@@ -199,19 +199,10 @@ export class SegmentCollector {
   private ensureCapacity(rows: number): void {
     if (rows <= this.rowTrackId.length) return;
     const capacity = Math.min(this.maxRows, Math.max(rows, this.rowTrackId.length * 2));
-    const grow = (old: Float64Array): Float64Array => {
-      const next = new Float64Array(capacity * this.length);
-      next.set(old);
-      return next;
-    };
-    this.stepsX = grow(this.stepsX);
-    this.stepsY = grow(this.stepsY);
-    const ids = new Uint32Array(capacity);
-    ids.set(this.rowTrackId);
-    this.rowTrackId = ids;
-    const filled = new Int32Array(capacity);
-    filled.set(this.rowFilled);
-    this.rowFilled = filled;
+    this.stepsX = grownArray(this.stepsX, capacity * this.length);
+    this.stepsY = grownArray(this.stepsY, capacity * this.length);
+    this.rowTrackId = grownArray(this.rowTrackId, capacity);
+    this.rowFilled = grownArray(this.rowFilled, capacity);
   }
 }
 

@@ -25,7 +25,7 @@ describe('TrackRecords', () => {
       const values: number[] = [];
       const records = new TrackRecords(4); // grows as records are taken: exercises the copy
       for (let rep = 0; rep < reps; rep++) {
-        const k = records.allocate(rep + 1, 0);
+        const k = records.allocate(0);
         let tx = 0, ty = 0;
         let ox = sigma * random.normal(), oy = sigma * random.normal();
         for (let s = 1; s <= 100; s++) {
@@ -47,11 +47,11 @@ describe('TrackRecords', () => {
 
     it('segmentDiffusion() is NaN without a cross product and resetSegment() starts afresh', () => {
       const records = new TrackRecords();
-      const other = records.allocate(3, 0);
+      const other = records.allocate(0);
       records.addStep(other, 5, 5, 1);
       records.addStep(other, 5, 5, 2);
       records.release(other); // a reused record starts empty
-      const k = records.allocate(4, 10);
+      const k = records.allocate(10);
       expect(k).toBe(other);
       records.addStep(k, 0.1, 0.1, 11);
       expect(records.segmentDiffusion(k, 0.05)).toBeNaN();
@@ -67,12 +67,12 @@ describe('TrackRecords', () => {
   describe('#intensitiesAround', () => {
     it('intensitiesAround(split) splits the ring at the slot, latest first before, earliest first after', () => {
       const records = new TrackRecords(2);
-      const before = records.allocate(1, 0);
+      const before = records.allocate(0);
       records.addIntensity(before, 100, 0);
-      const k = records.allocate(2, 0);
+      const k = records.allocate(0);
       for (let s = 0; s < 60; s++) {
         records.addIntensity(k, s, s); // ring of 48 keeps slots 12..59
-        records.allocate(100 + s, s); // growth copies the rings on the way
+        records.allocate(s); // growth copies the rings on the way
       }
       const out = new Float64Array(10);
       expect(records.intensitiesAround(k, 30, false, 3, out)).toBe(3);
@@ -83,7 +83,7 @@ describe('TrackRecords', () => {
       const latest = records.latestIntensityAt(k);
       expect([records.logIntensity[latest], records.intensitySlot[latest]]).toEqual([59, 59]);
       expect(Array.from(records.intensities(before))).toEqual([100]);
-      expect(records.latestIntensityAt(records.allocate(999, 70))).toBe(-1);
+      expect(records.latestIntensityAt(records.allocate(70))).toBe(-1);
     });
   });
 });

@@ -60,6 +60,14 @@ export interface ClumpingOptions {
    * over 50 frames a block is as good as over every frame, at a fraction of the cost.
    */
   baselineNearestNeighbourFrames: number;
+  /**
+   * Most close-pair looks per second, Hz (default 200). Above this frame rate the close pairs are
+   * measured on one frame in every k = ⌊rate/pairLookHz⌋, the first frame of each run of k slots;
+   * the persistence length L is then designed for a camera sampling every k·Δt (the
+   * chance-persistence law carries the sampling interval in r_eff), so the pair signal keeps its
+   * false-alarm design and its delay in seconds. Every frame is looked at up to 2·pairLookHz − 1.
+   */
+  pairLookHz: number;
 }
 
 /** One recorded merge: track `a` ended beside track `b`, which then became brighter. */
@@ -107,6 +115,8 @@ export interface ClumpingSummary {
   design: {
     blockFrames: number;
     persistenceFrames: number | null;
+    /** k, frames per close-pair look (1 up to 2·pairLookHz − 1 frames/s). */
+    pairLookFrames: number | null;
     closeDistance: number | null;
     signalAlpha: number | null;
     baselineDiffusion: number | null;
@@ -149,6 +159,7 @@ const DEFAULTS: ClumpingOptions = {
   mergeWindowFrames: 5,
   maxListed: 20,
   baselineNearestNeighbourFrames: 50,
+  pairLookHz: 200,
 };
 
 const KEY = 'clumping';
@@ -235,12 +246,18 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
   private alpha = 0;
   private closeDistance = 0;
   private mergeDistance = 0;
+  /** Persistence length L in frames ((L_looks − 1)·k + 1), and in close-pair looks. */
   private persistence = 0;
+  private persistenceLooks = 0;
+  /** k: frames per close-pair look; the look index (⌊slot/k⌋) of the last look. */
+  private lookFrames = 1;
+  private lastLook = -1;
   // Clark–Evans on every `nearestNeighbourStride`-th baseline frame (and every block's last frame)
   private nearestNeighbourStride = 1;
   // baseline
   private baselineDone = false;
   private baselineFrames = 0;
+  private baselineLooks = 0;
   private baselineClosePairs = 0;
   private baselineCsrPairs = 0;
   private baselineZSum = 0;
@@ -310,6 +327,7 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     if (!Number.isInteger(o.baselineNearestNeighbourFrames) || o.baselineNearestNeighbourFrames < 1) {
       throw new RangeError('clumping requires baselineNearestNeighbourFrames to be an integer >= 1');
     }
+    positive(o.pairLookHz, 'pairLookHz');
     this.options = o;
     this.before = new Float64Array(2 * o.mergeWindowFrames);
     this.after = new Float64Array(o.mergeWindowFrames);
@@ -403,34 +421,40 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
       this.pooledCrossCount += pooledCrossCount;
     }
 
-    // Close pairs within r_c: a list of the pairs within r_c + skin kept across frames, measured
-    // each frame and rebuilt on a uniform grid when a track has moved skin/2 (no O(N²); no
-    // kd-tree rebuilt per frame): pairs i < j, in ascending i then j.
+    // Close pairs within r_c, on the look frames only (every frame up to 2·pairLookHz − 1 Hz): a
+    // list of the pairs within r_c + skin kept across looks, measured each look and rebuilt on a
+    // uniform grid when a track has moved skin/2 (no O(N²); no kd-tree rebuilt per frame): pairs
+    // i < j, in ascending i then j. Episodes count looks; a look interval with no frame (dropped
+    // frames) continues them, as a dropped frame does at k = 1.
     let closePairs = 0;
-    if (n >= 2) {
-      const candidates = (this.candidates ??= new ClosePairCandidates(this.closeDistance));
-      let found = candidates.find(steps.x, steps.y, steps.trackId, steps.trackRow, n, this.closeDistance, this.pairKeys);
-      if (found < 0) {
-        this.pairKeys = new Float64Array(-2 * found);
-        found = candidates.find(steps.x, steps.y, steps.trackId, steps.trackRow, n, this.closeDistance, this.pairKeys);
+    const lookIndex = Math.floor(slot / this.lookFrames);
+    const look = lookIndex > this.lastLook;
+    if (look) {
+      const lookGap = this.lastLook < 0 ? 1 : lookIndex - this.lastLook;
+      this.lastLook = lookIndex;
+      if (n >= 2) {
+        const candidates = (this.candidates ??= new ClosePairCandidates(this.closeDistance));
+        let found = candidates.find(steps.x, steps.y, steps.trackId, steps.trackRow, n, this.closeDistance, this.pairKeys);
+        if (found < 0) {
+          this.pairKeys = new Float64Array(-2 * found);
+          found = candidates.find(steps.x, steps.y, steps.trackId, steps.trackRow, n, this.closeDistance, this.pairKeys);
+        }
+        for (let h = 0; h < found; h++) {
+          const key = this.pairKeys[h];
+          const i = Math.floor(key / n);
+          const j = key - i * n;
+          closePairs++;
+          this.episodes.see(steps.trackId[i], steps.trackId[j], lookIndex, steps.t, lookGap);
+        }
       }
-      for (let h = 0; h < found; h++) {
-        const key = this.pairKeys[h];
-        const i = Math.floor(key / n);
-        const j = key - i * n;
-        closePairs++;
-        this.episodes.see(steps.trackId[i], steps.trackId[j], slot, steps.t, steps.slotGap);
-      }
-    }
-    this.episodes.sweep(slot);
-    if (this.baselineDone) {
-      for (const episode of this.episodes.values()) {
-        if (episode.frames < this.persistence || episode.persistent) continue;
-        // counted once, in the block where the episode first reaches L frames
-        this.tallies.persistent.add(`${episode.a}:${episode.b}`);
-        {
+      this.episodes.sweep(lookIndex);
+      if (this.baselineDone) {
+        for (const episode of this.episodes.values()) {
+          if (episode.frames < this.persistenceLooks || episode.persistent) continue;
+          // counted once, in the block where the episode first reaches L looks
+          this.tallies.persistent.add(`${episode.a}:${episode.b}`);
           episode.persistent = true;
-          this.persistentLog.unshift({ a: episode.a, b: episode.b, since: episode.since, frames: episode.frames });
+          this.persistentLog.unshift({ a: episode.a, b: episode.b, since: episode.since, frames: this.looksToFrames(episode.frames) });
           if (this.persistentLog.length > this.options.maxListed) this.persistentLog.pop();
         }
       }
@@ -460,10 +484,13 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     const blockEnd = this.framesInBlock + 1 >= this.blockFrames;
     if (!this.baselineDone) {
       this.baselineFrames++;
-      this.baselineClosePairs += closePairs;
-      // CSR expectation N(N − 1)πr_c²/(2A) (detectors.md §3b), a floor for the observed rate
-      const area = (steps.field.xMax - steps.field.xMin) * (steps.field.yMax - steps.field.yMin);
-      if (area > 0) this.baselineCsrPairs += (n * (n - 1) * Math.PI * this.closeDistance * this.closeDistance) / (2 * area);
+      if (look) {
+        // per look: the close-pair rate and its CSR floor N(N − 1)πr_c²/(2A) (detectors.md §3b)
+        this.baselineLooks++;
+        this.baselineClosePairs += closePairs;
+        const area = (steps.field.xMax - steps.field.xMin) * (steps.field.yMax - steps.field.yMin);
+        if (area > 0) this.baselineCsrPairs += (n * (n - 1) * Math.PI * this.closeDistance * this.closeDistance) / (2 * area);
+      }
     }
     if ((!this.baselineDone && this.framesInBlock % this.nearestNeighbourStride === 0) || blockEnd) {
       const result = clarkEvans(steps.x, steps.y, n, steps.field, { scratch: this.scratch });
@@ -543,7 +570,7 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     const nn = this.lastNearest;
     const pairs: [number, number][] = [];
     for (const episode of this.episodes.values()) {
-      if (this.baselineDone && episode.frames >= this.persistence && pairs.length < this.options.maxListed) pairs.push([episode.a, episode.b]);
+      if (this.baselineDone && episode.frames >= this.persistenceLooks && pairs.length < this.options.maxListed) pairs.push([episode.a, episode.b]);
     }
     const looks = {} as Record<SignalName, SignalLooks>;
     for (const name of SIGNALS) looks[name] = { ...this.looks[name] };
@@ -558,10 +585,11 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
       design: {
         blockFrames: this.blockFrames,
         persistenceFrames: this.baselineDone ? this.persistence : null,
+        pairLookFrames: this.frameInterval > 0 ? this.lookFrames : null,
         closeDistance: this.frameInterval > 0 ? this.closeDistance : null,
         signalAlpha: this.frameInterval > 0 ? this.alpha : null,
         baselineDiffusion: Number.isFinite(this.diffusionMonomer) ? this.diffusionMonomer : null,
-        baselineClosePairsPerFrame: this.baselineFrames > 0 ? Math.max(this.baselineClosePairs, this.baselineCsrPairs) / this.baselineFrames : null,
+        baselineClosePairsPerFrame: this.baselineLooks > 0 ? Math.max(this.baselineClosePairs, this.baselineCsrPairs) / this.baselineLooks : null,
         intensityNoise: Number.isFinite(this.intensityNoise) ? this.intensityNoise : null,
       },
       looks,
@@ -585,6 +613,13 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     const radius = context.radius;
     this.closeDistance = o.closeDistance ?? (radius !== undefined && radius > 0 ? 3 * radius : 1.5);
     this.mergeDistance = o.mergeDistance ?? this.closeDistance;
+    // frames per close-pair look (1e-9: a rate of exactly k·pairLookHz gives k, not k − 1)
+    this.lookFrames = Math.max(1, Math.floor(1 / (frameInterval * o.pairLookHz) + 1e-9));
+  }
+
+  /** Frames spanned by `looks` close-pair looks k frames apart. */
+  private looksToFrames(looks: number): number {
+    return (looks - 1) * this.lookFrames + 1;
   }
 
   private finishBaseline(context: DetectorContext): void {
@@ -607,14 +642,16 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     this.baselineSegments = [];
     const noise = this.intensityDiffs > 0 ? Math.sqrt(this.intensitySqDiff / this.intensityDiffs / 2) : 0;
     this.intensityNoise = Math.max(noise, this.options.intensityNoiseFloor);
-    this.persistence = persistenceFrames({
+    // L in looks, designed for a camera sampling every k·Δt (the looks are that camera's frames)
+    this.persistenceLooks = persistenceFrames({
       diffusion: d,
       closeDistance: this.closeDistance,
-      frameInterval: this.frameInterval,
-      // the baseline's own rate, but never below CSR: a short baseline can undercount (pairs persist)
-      closePairsPerFrame: Math.max(this.baselineClosePairs, this.baselineCsrPairs) / Math.max(1, this.baselineFrames),
+      frameInterval: this.lookFrames * this.frameInterval,
+      // the baseline's own rate per look, but never below CSR: a short baseline can undercount (pairs persist)
+      closePairsPerFrame: Math.max(this.baselineClosePairs, this.baselineCsrPairs) / Math.max(1, this.baselineLooks),
       chancePairsPerHour: this.alpha * this.blocksPerHour,
     });
+    this.persistence = this.looksToFrames(this.persistenceLooks);
   }
 
   /** Index of the present track nearest to (x, y) within r_m, other than `id`, that existed before `split`; −1 if none. */
@@ -745,7 +782,7 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     // Agreement over the last `agreementBlocks` blocks.
     // Effect: dimer fraction (slow tracks), or the objects visibly held together or merged.
     let heldPairs = 0;
-    for (const episode of this.episodes.values()) if (episode.frames >= this.persistence) heldPairs++;
+    for (const episode of this.episodes.values()) if (episode.frames >= this.persistenceLooks) heldPairs++;
     let mergedPresent = 0;
     for (let i = 0; i < steps.count; i++) {
       const k = this.tracks.find(steps.trackId[i], steps.trackRow[i]);
@@ -777,13 +814,13 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     this.level = level;
 
     const pairs: [number, number][] = [];
-    for (const episode of this.episodes.values()) if (episode.frames >= this.persistence && pairs.length < o.maxListed) pairs.push([episode.a, episode.b]);
+    for (const episode of this.episodes.values()) if (episode.frames >= this.persistenceLooks && pairs.length < o.maxListed) pairs.push([episode.a, episode.b]);
     const framesPerHour = 3600 / this.frameInterval;
     const minP = pValues.length > 0 ? Math.min(...pValues) : 1;
     const parts: string[] = [];
     if (heldPairs > 0 && active.includes('persistentPairs')) {
       const listed = pairs.slice(0, 4).map(([a, b]) => `${a}–${b}`).join(', ');
-      parts.push(`${heldPairs} pair${heldPairs === 1 ? '' : 's'} held within ${fmt(this.closeDistance, 1)} µm for over ${fmt(this.persistence * this.frameInterval, 1)} s${listed ? ` (tracks ${listed})` : ''}`);
+      parts.push(`${heldPairs} pair${heldPairs === 1 ? '' : 's'} held within ${fmt(this.closeDistance, 1)} µm for over ${fmt((this.persistence - 1) * this.frameInterval, 1)} s${listed ? ` (tracks ${listed})` : ''}`);
     }
     if (nn && active.includes('nearestNeighbour')) parts.push(`nearest-neighbour ratio ${fmt(nn.ratio)} (z ${fmt(nn.z, 1)} against ${fmt(this.baselineZ, 1)} at the start)`);
     if (active.includes('merges') && this.merges.length > 0) parts.push(`${this.merges.length} track${this.merges.length === 1 ? '' : 's'} merged into a neighbour that became ×${fmt(this.merges[0].ratio, 1)} brighter`);

@@ -4,6 +4,7 @@ import type { DetectorContext } from '../detectorContext.js';
 import type { FrameSteps } from '../frameSteps.js';
 import { normalQuantile, normalUpperTail } from '../../stats/quantiles.js';
 import { AffineFlowTest, type AffineFlowResult } from './affineFlowTest.js';
+import { grownArray } from '../../stats/grownArray.js';
 import { medianInPlace } from './medianInPlace.js';
 import { PageCusum } from './pageCusum.js';
 import { siegmundArl } from './siegmundArl.js';
@@ -35,6 +36,15 @@ export interface DriftOptions {
   fiducialIds: readonly number[] | undefined;
   /** Most points kept in the decimated cumulative path (default 2000). */
   pathPoints: number;
+  /**
+   * Most looks per second for the median step and the affine flow test, Hz (default 200). Above
+   * 2·flowLookHz − 1 frames/s they are taken on the frames of slot 0, k, 2k, … (k = ⌊rate/flowLookHz⌋)
+   * from each track's displacement since the previous such frame, as a camera sampling every k·Δt
+   * would see it; the robust velocity and the mean-versus-median test use the same displacements.
+   * The one-frame mean step, its CUSUM and the jump check still see every frame. Not applied with
+   * `fiducialIds` (a median of a few beads).
+   */
+  flowLookHz: number;
 }
 
 /** Velocity with per-axis 95 % CIs, µm/s. */
@@ -71,6 +81,8 @@ export interface DriftSummary {
   /** Frames with steps used; frames skipped for too few steps. */
   frames: number;
   skippedFrames: number;
+  /** k: the median step and the flow test are taken on one frame in k (1 up to 2·flowLookHz − 1 frames/s). */
+  flowLookFrames: number;
 }
 
 const DEFAULTS: DriftOptions = {
@@ -86,8 +98,11 @@ const DEFAULTS: DriftOptions = {
   flowAlpha: 1e-3,
   fiducialIds: undefined,
   pathPoints: 2000,
+  flowLookHz: 200,
 };
 
+/** Track rows above this are left out of the looks at k > 1 (the pipeline's rows stay far below). */
+const MAX_LOOK_ROWS = 1 << 20;
 const MEDIAN_VARIANCE_FACTOR = Math.PI / 2; // Var(median)/Var(mean) for normal steps, large N
 const Z975 = 1.959963984540054;
 const CHART_NAMES = ['x+', 'x-', 'y+', 'y-'] as const;
@@ -98,37 +113,64 @@ class IncrementSums {
   sumY = 0;
   varX = 0;
   varY = 0;
+  frames = 0;
+  /**
+   * The looks (every frame at k = 1): Σ of their median and mean displacements and of the mean's
+   * variance per axis, µm and µm², and the frames they span (Σ k).
+   */
   medX = 0;
   medY = 0;
-  frames = 0;
+  lookSumX = 0;
+  lookSumY = 0;
+  lookVarX = 0;
+  lookVarY = 0;
+  lookSpan = 0;
   reset(): void {
     this.sumX = this.sumY = this.varX = this.varY = this.medX = this.medY = 0;
+    this.lookSumX = this.lookSumY = this.lookVarX = this.lookVarY = 0;
     this.frames = 0;
+    this.lookSpan = 0;
   }
-  add(mx: number, my: number, vx: number, vy: number, medX: number, medY: number): void {
+  /** One frame's mean step and the variance of that mean per axis. */
+  add(mx: number, my: number, vx: number, vy: number): void {
     this.sumX += mx;
     this.sumY += my;
     this.varX += vx;
     this.varY += vy;
+    this.frames++;
+  }
+  /** One look: the mean displacement over `span` frames, its variance, and the median displacement. */
+  addLook(mx: number, my: number, vx: number, vy: number, medX: number, medY: number, span: number): void {
     this.medX += medX;
     this.medY += medY;
-    this.frames++;
+    this.lookSumX += mx;
+    this.lookSumY += my;
+    this.lookVarX += vx;
+    this.lookVarY += vy;
+    this.lookSpan += span;
   }
   copyFrom(other: IncrementSums): void {
     this.sumX = other.sumX; this.sumY = other.sumY;
     this.varX = other.varX; this.varY = other.varY;
     this.medX = other.medX; this.medY = other.medY;
+    this.lookSumX = other.lookSumX; this.lookSumY = other.lookSumY;
+    this.lookVarX = other.lookVarX; this.lookVarY = other.lookVarY;
     this.frames = other.frames;
+    this.lookSpan = other.lookSpan;
   }
-  /** v̂ = Σm/(WΔt), SE = √(Σ s_t²/N_t)/(WΔt) (detectors.md §1); robust uses medians with π/2 variance. */
+  /**
+   * v̂ = Σm/(WΔt), SE = √(Σ s_t²/N_t)/(WΔt) (detectors.md §1); robust: Σmed/(span·Δt) over the
+   * looks, with π/2 the variance (the mean's estimate when there was no look).
+   */
   velocity(frameInterval: number, robust: boolean): VelocityEstimate | null {
     if (this.frames === 0) return null;
-    const duration = this.frames * frameInterval;
-    const factor = robust ? Math.sqrt(MEDIAN_VARIANCE_FACTOR) : 1;
-    const vx = (robust ? this.medX : this.sumX) / duration;
-    const vy = (robust ? this.medY : this.sumY) / duration;
-    const sex = (factor * Math.sqrt(this.varX)) / duration;
-    const sey = (factor * Math.sqrt(this.varY)) / duration;
+    const useMedian = robust && this.lookSpan > 0;
+    const duration = (useMedian ? this.lookSpan : this.frames) * frameInterval;
+    const factor = useMedian ? Math.sqrt(MEDIAN_VARIANCE_FACTOR) : 1;
+    const vx = (useMedian ? this.medX : this.sumX) / duration;
+    const vy = (useMedian ? this.medY : this.sumY) / duration;
+    const sex = (factor * Math.sqrt(useMedian ? this.lookVarX : this.varX)) / duration;
+    const sey = (factor * Math.sqrt(useMedian ? this.lookVarY : this.varY)) / duration;
     return { value: [vx, vy], ci95: [[vx - Z975 * sex, vx + Z975 * sex], [vy - Z975 * sey, vy + Z975 * sey]] };
   }
 }
@@ -210,6 +252,17 @@ export class DriftDetector implements Detector<DriftSummary> {
   private readonly pathYs: number[] = [];
   private frames = 0;
   private skipped = 0;
+  // k, frames per median and flow-test look; at k > 1 each row's position at its last look
+  // (slot, track id, x, y; by FrameSteps.trackRow), and the look's displacements and start positions.
+  private lookFrames = 1;
+  private lookSlot: Float64Array = new Float64Array(0);
+  private lookId: Float64Array = new Float64Array(0);
+  private lookX: Float64Array = new Float64Array(0);
+  private lookY: Float64Array = new Float64Array(0);
+  private lookDx = new Float64Array(64);
+  private lookDy = new Float64Array(64);
+  private lookX0 = new Float64Array(64);
+  private lookY0 = new Float64Array(64);
 
   /** @throws RangeError naming the option when an option is out of range */
   constructor(options: Partial<DriftOptions> = {}) {
@@ -230,6 +283,7 @@ export class DriftDetector implements Detector<DriftSummary> {
     }
     this.options = o;
     this.fiducials = o.fiducialIds && o.fiducialIds.length > 0 ? new Set(o.fiducialIds) : undefined;
+    positive(o.flowLookHz, 'flowLookHz');
   }
 
   /** Feed one frame; returns the conditions that changed on it. O(N_t). */
@@ -242,7 +296,12 @@ export class DriftDetector implements Detector<DriftSummary> {
       this.jumpOpen = false;
       out.push(this.clearCondition('drift:jump', steps.t, 'stage jump over', 'jump |z|', this.jumpThreshold));
     }
-    const n = this.gather(steps);
+    const k = this.lookFrames;
+    const n = this.gather(steps, k === 1);
+    // at k > 1, on slots 0, k, 2k, …: the displacements since the previous look (kept even on a
+    // frame with too few one-frame steps, so the next look has its start positions)
+    const lookSlot = k > 1 && steps.slot % k === 0;
+    const lookCount = lookSlot ? this.lookDisplacements(steps) : 0;
     if (n < 2) {
       this.skipped++;
       return out;
@@ -268,18 +327,46 @@ export class DriftDetector implements Detector<DriftSummary> {
     }
     const s2x = ssx / (n - 1);
     const s2y = ssy / (n - 1);
-    // The medians are looked for first within 4 standard errors of the mean (exact either way).
-    this.bufMed.set(dx.subarray(0, n));
-    const medX = medianInPlace(this.bufMed, n, mx, 4 * Math.sqrt(s2x / n));
-    this.bufMed.set(dy.subarray(0, n));
-    const medY = medianInPlace(this.bufMed, n, my, 4 * Math.sqrt(s2y / n));
     const vx = s2x / n, vy = s2y / n;
+    // The look: this frame's steps at k = 1; at k > 1, on slots 0, k, 2k, …, the displacements
+    // since the previous look. Its mean, the mean's variance and the coordinate-wise median (looked
+    // for first within 4 standard errors of the mean; exact either way).
+    let looked = false;
+    let lookN = n, lmx = mx, lmy = my, lvx = vx, lvy = vy;
+    let lookDx = dx, lookDy = dy, lookX0 = this.bufX0, lookY0 = this.bufY0;
+    if (k === 1) {
+      looked = true;
+    } else if (lookSlot) {
+      lookN = lookCount;
+      if (lookN >= 2) {
+        looked = true;
+        lookDx = this.lookDx; lookDy = this.lookDy; lookX0 = this.lookX0; lookY0 = this.lookY0;
+        lmx = 0; lmy = 0;
+        for (let i = 0; i < lookN; i++) { lmx += lookDx[i]; lmy += lookDy[i]; }
+        lmx /= lookN; lmy /= lookN;
+        let sx = 0, sy = 0;
+        for (let i = 0; i < lookN; i++) {
+          sx += (lookDx[i] - lmx) * (lookDx[i] - lmx);
+          sy += (lookDy[i] - lmy) * (lookDy[i] - lmy);
+        }
+        lvx = sx / (lookN - 1) / lookN;
+        lvy = sy / (lookN - 1) / lookN;
+      }
+    }
+    let medX = 0, medY = 0;
+    if (looked) {
+      this.bufMed.set(lookDx.subarray(0, lookN));
+      medX = medianInPlace(this.bufMed, lookN, lmx, 4 * Math.sqrt(lvx));
+      this.bufMed.set(lookDy.subarray(0, lookN));
+      medY = medianInPlace(this.bufMed, lookN, lmy, 4 * Math.sqrt(lvy));
+    }
 
     // Path and whole-run sums (jumps included: they are real common-mode motion).
     this.pathX += mx;
     this.pathY += my;
     this.recordPath(steps.t);
-    this.run.add(mx, my, vx, vy, medX, medY);
+    this.run.add(mx, my, vx, vy);
+    if (looked) this.run.addLook(lmx, lmy, lvx, lvy, medX, medY, k);
 
     // Standardise against the pooled variance of past frames, then update the pool.
     const pooled = this.poolFrames > 0;
@@ -295,8 +382,11 @@ export class DriftDetector implements Detector<DriftSummary> {
     }
 
     // Window: recent velocity and flow diagnosis on non-overlapping windows.
-    this.window.add(mx, my, vx, vy, medX, medY);
-    if (!this.fiducials) this.flowTest.addFrame(n, this.bufX0, this.bufY0, dx, dy);
+    this.window.add(mx, my, vx, vy);
+    if (looked) {
+      this.window.addLook(lmx, lmy, lvx, lvy, medX, medY, k);
+      if (!this.fiducials) this.flowTest.addFrame(lookN, lookX0, lookY0, lookDx, lookDy);
+    }
     this.windowFrames++;
     if (this.windowFrames >= Math.max(10, Math.round(this.options.windowSeconds / this.frameInterval))) {
       const flowCondition = this.closeWindow(steps.t);
@@ -314,12 +404,17 @@ export class DriftDetector implements Detector<DriftSummary> {
         // Sums since the chart last left zero: the post-change estimate at a signal.
         if (chart.value === 0) this.sinceZero[c].reset();
         const fired = chart.push(zs[c]);
-        this.sinceZero[c].add(mx, my, vx, vy, medX, medY);
+        this.sinceZero[c].add(mx, my, vx, vy);
+        if (looked) this.sinceZero[c].addLook(lmx, lmy, lvx, lvy, medX, medY, k);
         if (fired && signalled < 0) signalled = c;
       }
       if (wasActive) {
-        this.episode.add(mx, my, vx, vy, medX, medY);
-        this.post.add(mx, my, vx, vy, medX, medY);
+        this.episode.add(mx, my, vx, vy);
+        this.post.add(mx, my, vx, vy);
+        if (looked) {
+          this.episode.addLook(lmx, lmy, lvx, lvy, medX, medY, k);
+          this.post.addLook(lmx, lmy, lvx, lvy, medX, medY, k);
+        }
       } else if (signalled >= 0) {
         this.episode.copyFrom(this.sinceZero[signalled]);
         this.post.reset();
@@ -364,6 +459,7 @@ export class DriftDetector implements Detector<DriftSummary> {
         : null,
       frames: this.frames,
       skippedFrames: this.skipped,
+      flowLookFrames: this.lookFrames,
     };
   }
 
@@ -374,10 +470,15 @@ export class DriftDetector implements Detector<DriftSummary> {
     const framesPerHour = 3600 / frameInterval;
     const jumpAlpha = (0.1 * this.options.falseWarnsPerHour) / framesPerHour; // per frame, both axes, both signs
     this.jumpThreshold = this.options.jumpThreshold ?? Math.max(5, normalQuantile(1 - jumpAlpha / 4));
+    // frames per median and flow-test look (1e-9: a rate of exactly k·flowLookHz gives k, not k − 1)
+    this.lookFrames = this.fiducials ? 1 : Math.max(1, Math.floor(1 / (frameInterval * this.options.flowLookHz) + 1e-9));
   }
 
-  /** Copy the usable steps (fiducial or all, finite) into the scratch buffers; returns their count. */
-  private gather(steps: FrameSteps): number {
+  /**
+   * Copy the usable steps (fiducial or all, finite) into the scratch buffers, with their start
+   * positions when `withStarts` (for the flow test at k = 1); returns their count.
+   */
+  private gather(steps: FrameSteps, withStarts: boolean): number {
     const count = steps.stepCount;
     if (this.bufDx.length < count) {
       const size = Math.max(count, 2 * this.bufDx.length);
@@ -399,12 +500,63 @@ export class DriftDetector implements Detector<DriftSummary> {
       if (fiducials && !fiducials.has(trackId[p])) continue;
       bufDx[n] = a;
       bufDy[n] = b;
-      // Start position of the step: independent of the step's own noise.
-      bufX0[n] = x[p] - a;
-      bufY0[n] = y[p] - b;
+      if (withStarts) {
+        // Start position of the step: independent of the step's own noise.
+        bufX0[n] = x[p] - a;
+        bufY0[n] = y[p] - b;
+      }
       n++;
     }
     return n;
+  }
+
+  /**
+   * At a look (k > 1, slot a multiple of k): each present track's displacement since the previous
+   * look, k slots back, for the tracks seen there (same row and id, finite), with its start
+   * position; then every present track's position is kept for the next look. Returns the count.
+   * O(N_t) per look, nothing on the other frames.
+   */
+  private lookDisplacements(steps: FrameSteps): number {
+    const count = steps.count;
+    if (this.lookDx.length < count) {
+      const size = Math.max(count, 2 * this.lookDx.length);
+      this.lookDx = new Float64Array(size);
+      this.lookDy = new Float64Array(size);
+      this.lookX0 = new Float64Array(size);
+      this.lookY0 = new Float64Array(size);
+    }
+    const previous = steps.slot - this.lookFrames;
+    const { x, y, trackRow, trackId } = steps;
+    let n = 0;
+    for (let p = 0; p < count; p++) {
+      const row = trackRow[p];
+      if (!(row >= 0 && row < MAX_LOOK_ROWS)) continue;
+      if (row >= this.lookSlot.length) this.growLookRows(row);
+      const px = x[p];
+      const py = y[p];
+      if (!Number.isFinite(px) || !Number.isFinite(py)) continue;
+      const id = trackId[p];
+      if (this.lookSlot[row] === previous && this.lookId[row] === id) {
+        this.lookDx[n] = px - this.lookX[row];
+        this.lookDy[n] = py - this.lookY[row];
+        this.lookX0[n] = this.lookX[row];
+        this.lookY0[n] = this.lookY[row];
+        n++;
+      }
+      this.lookSlot[row] = steps.slot;
+      this.lookId[row] = id;
+      this.lookX[row] = px;
+      this.lookY[row] = py;
+    }
+    return n;
+  }
+
+  private growLookRows(row: number): void {
+    const size = Math.min(MAX_LOOK_ROWS, Math.max(row + 1, 2 * this.lookSlot.length, 1024));
+    this.lookSlot = grownArray(this.lookSlot, size, -1);
+    this.lookId = grownArray(this.lookId, size, -1);
+    this.lookX = grownArray(this.lookX, size);
+    this.lookY = grownArray(this.lookY, size);
   }
 
   private updatePool(s2x: number, s2y: number, n: number): void {
@@ -455,16 +607,18 @@ export class DriftDetector implements Detector<DriftSummary> {
 
   private closeWindow(t: number): Condition | undefined {
     this.lastWindow.copyFrom(this.window);
-    const flow = this.fiducials ? undefined : this.flowTest.result(this.frameInterval);
+    // the looks' displacements span k frames each
+    const flow = this.fiducials ? undefined : this.flowTest.result(this.lookFrames * this.frameInterval);
     // Mean-versus-median test: Var(median − mean) ≈ (π/2 − 1)·Var(mean) for normal steps.
     const w = this.window;
     let sub: { pValue: number; meanMinusMedian: [number, number] } | undefined;
-    if (w.varX > 0 && w.varY > 0) {
-      const duration = w.frames * this.frameInterval;
-      const zx = (w.sumX - w.medX) / Math.sqrt((MEDIAN_VARIANCE_FACTOR - 1) * w.varX);
-      const zy = (w.sumY - w.medY) / Math.sqrt((MEDIAN_VARIANCE_FACTOR - 1) * w.varY);
+    // Both on the window's looks (every frame at k = 1).
+    if (w.lookVarX > 0 && w.lookVarY > 0) {
+      const duration = w.lookSpan * this.frameInterval;
+      const zx = (w.lookSumX - w.medX) / Math.sqrt((MEDIAN_VARIANCE_FACTOR - 1) * w.lookVarX);
+      const zy = (w.lookSumY - w.medY) / Math.sqrt((MEDIAN_VARIANCE_FACTOR - 1) * w.lookVarY);
       const p = Math.min(1, 4 * normalUpperTail(Math.max(Math.abs(zx), Math.abs(zy))));
-      sub = { pValue: p, meanMinusMedian: [(w.sumX - w.medX) / duration, (w.sumY - w.medY) / duration] };
+      sub = { pValue: p, meanMinusMedian: [(w.lookSumX - w.medX) / duration, (w.lookSumY - w.medY) / duration] };
     }
     this.lastFlow = flow;
     this.lastSubpopulation = sub;

@@ -27,7 +27,7 @@ export interface ClumpingOptions {
   closeDistance: number | undefined;
   /** Merge distance r_m between an ended track's last position and a continuing track, µm (default r_c). */
   mergeDistance: number | undefined;
-  /** Steps per per-track D segment (non-overlapping) (default 150: about 14 % SE at x = 0, detectors.md §6d). */
+  /** Steps per per-track D segment (non-overlapping; above the look rate, steps between looks) (default 150: about 14 % SE at x = 0, detectors.md §6d). */
   segmentSteps: number;
   /** D of a dimer relative to a monomer (default 0.718, estimators.md §8). */
   dimerRatio: number;
@@ -61,13 +61,14 @@ export interface ClumpingOptions {
    */
   baselineNearestNeighbourFrames: number;
   /**
-   * Most close-pair looks per second, Hz (default 200). Above this frame rate the close pairs are
-   * measured on one frame in every k = ⌊rate/pairLookHz⌋, the first frame of each run of k slots;
-   * the persistence length L is then designed for a camera sampling every k·Δt (the
-   * chance-persistence law carries the sampling interval in r_eff), so the pair signal keeps its
-   * false-alarm design and its delay in seconds. Every frame is looked at up to 2·pairLookHz − 1.
+   * Most looks per second, Hz (default 200). Above 2·lookHz − 1 frames/s the close pairs and the
+   * per-track D segments are taken on the frames of slot 0, k, 2k, … (k = ⌊rate/lookHz⌋), as a
+   * camera sampling every k·Δt would see them: the segments from each track's displacement since
+   * its previous look, the persistence length L designed at k·Δt (the chance-persistence law
+   * carries the sampling interval in r_eff). The signals keep their false-alarm design and their
+   * delays in seconds. Nearest neighbours and merges still see every frame.
    */
-  pairLookHz: number;
+  lookHz: number;
 }
 
 /** One recorded merge: track `a` ended beside track `b`, which then became brighter. */
@@ -115,8 +116,8 @@ export interface ClumpingSummary {
   design: {
     blockFrames: number;
     persistenceFrames: number | null;
-    /** k, frames per close-pair look (1 up to 2·pairLookHz − 1 frames/s). */
-    pairLookFrames: number | null;
+    /** k, frames per look of the close pairs and the D segments (1 up to 2·lookHz − 1 frames/s). */
+    lookFrames: number | null;
     closeDistance: number | null;
     signalAlpha: number | null;
     baselineDiffusion: number | null;
@@ -159,7 +160,7 @@ const DEFAULTS: ClumpingOptions = {
   mergeWindowFrames: 5,
   maxListed: 20,
   baselineNearestNeighbourFrames: 50,
-  pairLookHz: 200,
+  lookHz: 200,
 };
 
 const KEY = 'clumping';
@@ -234,6 +235,10 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
   private readonly episodes = new ClosePairEpisodes();
   private readonly scratch = new NearestNeighbourScratch();
   private pairKeys = new Float64Array(64);
+  // A look frame's steps at k > 1 (displacements since the previous look, µm) and their particles.
+  private lookDx = new Float64Array(64);
+  private lookDy = new Float64Array(64);
+  private lookOwner = new Int32Array(64);
   /** Close-pair list, skin r_c (made once r_c is known). */
   private candidates: ClosePairCandidates | undefined;
   private readonly before: Float64Array;
@@ -327,7 +332,7 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     if (!Number.isInteger(o.baselineNearestNeighbourFrames) || o.baselineNearestNeighbourFrames < 1) {
       throw new RangeError('clumping requires baselineNearestNeighbourFrames to be an integer >= 1');
     }
-    positive(o.pairLookHz, 'pairLookHz');
+    positive(o.lookHz, 'lookHz');
     this.options = o;
     this.before = new Float64Array(2 * o.mergeWindowFrames);
     this.after = new Float64Array(o.mergeWindowFrames);
@@ -341,14 +346,20 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     const n = steps.count;
     const intensity = steps.intensity;
 
+    // A look frame (every frame at k = 1; else slots 0, k, 2k, …): the close pairs and, from each
+    // track's displacement since its last look, the per-track D segments.
+    const lookFrames = this.lookFrames;
+    const lookFrame = slot % lookFrames === 0;
     // Per-track records: position, intensity history (and its frame-to-frame noise at baseline).
-    // Each particle's record number is kept for the steps below (one lookup per particle).
+    // Each particle's record number is kept for the steps below (one lookup per particle). At
+    // k > 1 without intensities the records are needed on look frames only.
     if (this.recordOf.length < n) this.recordOf = new Int32Array(Math.max(n, 2 * this.recordOf.length));
     const recordOf = this.recordOf;
     const records = this.records;
     let intensitySqDiff = 0;
     let intensityDiffs = 0;
-    for (let i = 0; i < n; i++) {
+    const recordCount = lookFrame || intensity ? n : 0;
+    for (let i = 0; i < recordCount; i++) {
       const id = steps.trackId[i];
       let k = this.tracks.find(id, steps.trackRow[i]);
       if (k === undefined) {
@@ -388,22 +399,39 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     const lastStepSlot = records.lastStepSlot;
     const lastDx = records.lastDx;
     const lastDy = records.lastDy;
-    for (let s = 0; s < steps.stepCount; s++) {
-      const dx = steps.dx[s];
-      const dy = steps.dy[s];
+    // The steps: at k = 1 the frame's one-frame steps; at k > 1, on a look frame, each record's
+    // displacement since its look k slots back, a step of a camera sampling every k·Δt (counted in
+    // looks, so consecutive looks make a CVE pair); none on the other frames.
+    let stepDx = steps.dx;
+    let stepDy = steps.dy;
+    let stepOwner = steps.stepParticle;
+    let stepCount = lookFrames === 1 ? steps.stepCount : 0;
+    let stepSlot = slot;
+    let stepInterval = this.frameInterval;
+    if (lookFrames > 1 && lookFrame) {
+      stepCount = this.lookSteps(steps, n);
+      stepDx = this.lookDx;
+      stepDy = this.lookDy;
+      stepOwner = this.lookOwner;
+      stepSlot = slot / lookFrames;
+      stepInterval = this.stepInterval();
+    }
+    for (let s = 0; s < stepCount; s++) {
+      const dx = stepDx[s];
+      const dy = stepDy[s];
       if (!Number.isFinite(dx) || !Number.isFinite(dy)) continue;
-      const k = recordOf[steps.stepParticle[s]];
+      const k = recordOf[stepOwner[s]];
       if (inBaseline) {
         pooledSquares += dx * dx + dy * dy;
         pooledSquareCount += 2;
-        if (lastStepSlot[k] === slot - 1) {
+        if (lastStepSlot[k] === stepSlot - 1) {
           pooledCross += dx * lastDx[k] + dy * lastDy[k];
           pooledCrossCount += 2;
         }
       }
-      records.addStep(k, dx, dy, slot);
+      records.addStep(k, dx, dy, stepSlot);
       if (records.segmentSteps[k] >= segmentSteps) {
-        const d = records.segmentDiffusion(k, this.frameInterval);
+        const d = records.segmentDiffusion(k, stepInterval);
         records.resetSegment(k);
         if (!Number.isFinite(d)) continue;
         if (inBaseline) {
@@ -421,14 +449,14 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
       this.pooledCrossCount += pooledCrossCount;
     }
 
-    // Close pairs within r_c, on the look frames only (every frame up to 2·pairLookHz − 1 Hz): a
+    // Close pairs within r_c, on the look frames only (every frame up to 2·lookHz − 1 Hz): a
     // list of the pairs within r_c + skin kept across looks, measured each look and rebuilt on a
     // uniform grid when a track has moved skin/2 (no O(N²); no kd-tree rebuilt per frame): pairs
     // i < j, in ascending i then j. Episodes count looks; a look interval with no frame (dropped
     // frames) continues them, as a dropped frame does at k = 1.
     let closePairs = 0;
-    const lookIndex = Math.floor(slot / this.lookFrames);
-    const look = lookIndex > this.lastLook;
+    const lookIndex = slot / lookFrames;
+    const look = lookFrame && lookIndex > this.lastLook;
     if (look) {
       const lookGap = this.lastLook < 0 ? 1 : lookIndex - this.lastLook;
       this.lastLook = lookIndex;
@@ -585,7 +613,7 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
       design: {
         blockFrames: this.blockFrames,
         persistenceFrames: this.baselineDone ? this.persistence : null,
-        pairLookFrames: this.frameInterval > 0 ? this.lookFrames : null,
+        lookFrames: this.frameInterval > 0 ? this.lookFrames : null,
         closeDistance: this.frameInterval > 0 ? this.closeDistance : null,
         signalAlpha: this.frameInterval > 0 ? this.alpha : null,
         baselineDiffusion: Number.isFinite(this.diffusionMonomer) ? this.diffusionMonomer : null,
@@ -613,8 +641,50 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     const radius = context.radius;
     this.closeDistance = o.closeDistance ?? (radius !== undefined && radius > 0 ? 3 * radius : 1.5);
     this.mergeDistance = o.mergeDistance ?? this.closeDistance;
-    // frames per close-pair look (1e-9: a rate of exactly k·pairLookHz gives k, not k − 1)
-    this.lookFrames = Math.max(1, Math.floor(1 / (frameInterval * o.pairLookHz) + 1e-9));
+    // frames per close-pair look (1e-9: a rate of exactly k·lookHz gives k, not k − 1)
+    this.lookFrames = Math.max(1, Math.floor(1 / (frameInterval * o.lookHz) + 1e-9));
+  }
+
+  /**
+   * At a look frame (k > 1): each present track's displacement since its record's look k slots
+   * back into `lookDx`/`lookDy`, with the particle's index in `lookOwner`; every record then keeps
+   * this look's position. Returns the count. O(N).
+   */
+  private lookSteps(steps: FrameSteps, n: number): number {
+    if (this.lookDx.length < n) {
+      const size = Math.max(n, 2 * this.lookDx.length);
+      this.lookDx = new Float64Array(size);
+      this.lookDy = new Float64Array(size);
+      this.lookOwner = new Int32Array(size);
+    }
+    const records = this.records;
+    const recordOf = this.recordOf;
+    const previousLook = steps.slot - this.lookFrames;
+    const lookSlot = records.lookSlot;
+    const lookX = records.lookX;
+    const lookY = records.lookY;
+    let m = 0;
+    for (let i = 0; i < n; i++) {
+      const k = recordOf[i];
+      const x = steps.x[i];
+      const y = steps.y[i];
+      if (!Number.isFinite(x) || !Number.isFinite(y)) continue;
+      if (lookSlot[k] === previousLook) {
+        this.lookDx[m] = x - lookX[k];
+        this.lookDy[m] = y - lookY[k];
+        this.lookOwner[m] = i;
+        m++;
+      }
+      lookSlot[k] = steps.slot;
+      lookX[k] = x;
+      lookY[k] = y;
+    }
+    return m;
+  }
+
+  /** Interval of the per-track D segments' steps, s: Δt, or k·Δt above the look rate. */
+  private stepInterval(): number {
+    return this.lookFrames * this.frameInterval;
   }
 
   /** Frames spanned by `looks` close-pair looks k frames apart. */
@@ -624,7 +694,7 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
 
   private finishBaseline(context: DetectorContext): void {
     const own = this.pooledSquareCount > 0 && this.pooledCrossCount > 0
-      ? this.pooledSquares / (2 * this.frameInterval * this.pooledSquareCount) + this.pooledCross / (this.frameInterval * this.pooledCrossCount)
+      ? this.pooledSquares / (2 * this.stepInterval() * this.pooledSquareCount) + this.pooledCross / (this.stepInterval() * this.pooledCrossCount)
       : Number.NaN;
     // D_monomer: this run's own pooled baseline CVE (the same estimator as the per-track
     // segments, so crowding or a medium that slows every particle is absorbed); the context's D
@@ -746,8 +816,9 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     const lookSlow = this.slowPending[0], lookSegments = this.slowPending[1];
     if (slowLook) this.slowPending = [0, 0];
     if (slowLook && lookSegments >= 5) {
-      const x = context.localizationError !== undefined ? (context.localizationError ** 2) / (this.diffusionMonomer * this.frameInterval) : 0;
-      const se = segmentRelativeSe(o.segmentSteps, Math.max(0, x), context.blur);
+      // x and R of the segment's steps, made every k·Δt (R = t_E/(6kΔt): the context's R over k)
+      const x = context.localizationError !== undefined ? (context.localizationError ** 2) / (this.diffusionMonomer * this.stepInterval()) : 0;
+      const se = segmentRelativeSe(o.segmentSteps, Math.max(0, x), context.blur / this.lookFrames);
       const cut = o.slowCut;
       const p0 = Math.max(1 - normalUpperTail((cut - 1) / se), this.baselineSlowRate);
       const p = countUpperTail(lookSlow, p0, lookSegments);
@@ -767,8 +838,9 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     let pooledSlow = 0, pooledSegments = 0;
     for (const [k, m] of this.recentSegments) { pooledSlow += k; pooledSegments += m; }
     if (pooledSegments >= 5) {
-      const x = context.localizationError !== undefined ? (context.localizationError ** 2) / (this.diffusionMonomer * this.frameInterval) : 0;
-      const se = segmentRelativeSe(o.segmentSteps, Math.max(0, x), context.blur);
+      // x and R of the segment's steps, made every k·Δt (R = t_E/(6kΔt): the context's R over k)
+      const x = context.localizationError !== undefined ? (context.localizationError ** 2) / (this.diffusionMonomer * this.stepInterval()) : 0;
+      const se = segmentRelativeSe(o.segmentSteps, Math.max(0, x), context.blur / this.lookFrames);
       const cut = o.slowCut;
       const p0 = Math.max(1 - normalUpperTail((cut - 1) / se), this.baselineSlowRate);
       const p1 = 1 - normalUpperTail((cut - o.dimerRatio) / (o.dimerRatio * se));

@@ -14,7 +14,7 @@ export const INTENSITY_HISTORY = 48;
  * (2014, PRE 89:022726), per axis and pooled over x and y:
  * D̂ = Σd²/(2Δt·n_sq) + Σd_k·d_{k+1}/(Δt·n_cross).
  *
- * Memory: 77 bytes per record, plus 768 bytes (2 × 48 × 8) per record once any intensity has been
+ * Memory: 101 bytes per record, plus 768 bytes (2 × 48 × 8) per record once any intensity has been
  * added (the rings are allocated for every record at the first intensity: inputs without
  * intensity pay nothing for them). Storage grows by doubling; the arrays are replaced when it
  * does, so read them again after `allocate`.
@@ -43,6 +43,10 @@ export class TrackRecords {
   segmentSteps: Int32Array = new Int32Array(0);
   /** 1 once a merge into this track has been recorded (counted once). */
   merged: Uint8Array = new Uint8Array(0);
+  /** Above the look rate: the slot of the track's last look (−1: none) and its position there, µm. */
+  lookSlot: Float64Array = new Float64Array(0);
+  lookX: Float64Array = new Float64Array(0);
+  lookY: Float64Array = new Float64Array(0);
   /** Rings of log intensities and their slots (record k at k·INTENSITY_HISTORY; empty until the first intensity). */
   logIntensity: Float64Array = new Float64Array(0);
   intensitySlot: Float64Array = new Float64Array(0);
@@ -69,6 +73,7 @@ export class TrackRecords {
     this.crossCount[k] = 0;
     this.segmentSteps[k] = 0;
     this.merged[k] = 0;
+    this.lookSlot[k] = -1;
     this.intensityCount[k] = 0;
     this.intensityHead[k] = 0;
     return k;
@@ -79,7 +84,10 @@ export class TrackRecords {
     this.free.push(k);
   }
 
-  /** Add a one-frame step (µm) made into `slot` to record `k`. O(1). */
+  /**
+   * Add a step (µm) made into `slot` to record `k`: a one-frame step, or above the look rate the
+   * displacement between two looks, `slot` then counting looks. O(1).
+   */
   addStep(k: number, dx: number, dy: number, slot: number): void {
     this.sumSquares[k] += dx * dx + dy * dy;
     this.squareCount[k] += 2;
@@ -170,6 +178,9 @@ export class TrackRecords {
     this.crossCount = grownArray(this.crossCount, capacity);
     this.segmentSteps = grownArray(this.segmentSteps, capacity);
     this.merged = grownArray(this.merged, capacity);
+    this.lookSlot = grownArray(this.lookSlot, capacity, -1);
+    this.lookX = grownArray(this.lookX, capacity);
+    this.lookY = grownArray(this.lookY, capacity);
     this.intensityCount = grownArray(this.intensityCount, capacity);
     this.intensityHead = grownArray(this.intensityHead, capacity);
     this.capacity = capacity;

@@ -1,4 +1,5 @@
 import { MessageChannel, receiveMessageOnPort, Worker, type MessagePort } from 'node:worker_threads';
+import { packBatch } from './batchSql.mjs';
 import type { RecordRow } from './recorder.js';
 
 /** What the writer thread reports when writing stopped. */
@@ -66,14 +67,18 @@ export class BatchWriter {
     return this.posted - Atomics.load(this.done, 0);
   }
 
-  /** Queues one batch (the rows are copied to the thread); waits while `MAX_PENDING_BATCHES` are unwritten. */
+  /**
+   * Queues one batch: its frame rows' BLOB buffers are moved to the thread, not copied (the rows'
+   * BLOBs are unreadable here afterwards). Waits while `MAX_PENDING_BATCHES` are unwritten.
+   */
   post(rows: readonly RecordRow[]): void {
     this.poll();
     if (this.failure || rows.length === 0) return;
     if (this.pending >= MAX_PENDING_BATCHES) this.drain(MAX_PENDING_BATCHES - 1);
     if (this.failure) return;
     this.posted++;
-    this.worker.postMessage({ type: 'batch', rows });
+    const { message, transfer } = packBatch(rows);
+    this.worker.postMessage(message, transfer);
   }
 
   /** Caps the thread's connection at its current size plus `extraPages` pages (fault tests). */

@@ -23,6 +23,12 @@ export interface FrameRow {
   intensity: Buffer | null;
   /** Bytes of the BLOBs (what counts against the quota). */
   bytes: number;
+  /**
+   * The one buffer the BLOBs view, in the order x, y, z, id, intensity (those present), `bytes`
+   * long: handed to the writer thread without a copy (`BatchWriter.post`), after which the row's
+   * BLOBs are no longer readable here.
+   */
+  packed: ArrayBuffer;
 }
 
 /** One temperature reading to record. */
@@ -72,10 +78,14 @@ CREATE TABLE IF NOT EXISTS summaries (run TEXT NOT NULL, at TEXT NOT NULL, t REA
   diffusion REAL, low REAL, high REAL, worst TEXT);
 `;
 
-function blob(values: Float64Array | Uint32Array, count: number): Buffer {
-  // Buffer.from(arrayBuffer, offset, length) is a view; the second Buffer.from copies, so the
-  // row stays valid when the connection reuses its frame buffers for the next message.
-  return Buffer.from(Buffer.from(values.buffer, values.byteOffset, count * values.BYTES_PER_ELEMENT));
+/**
+ * Copies the first `count` values into `packed` at byte `offset` and returns a Buffer viewing the
+ * copy: the row stays valid when the connection reuses its frame buffers for the next message.
+ */
+function blob(values: Float64Array | Uint32Array, count: number, packed: ArrayBuffer, offset: number): Buffer {
+  const length = count * values.BYTES_PER_ELEMENT;
+  new Uint8Array(packed, offset, length).set(new Uint8Array(values.buffer, values.byteOffset, length));
+  return Buffer.from(packed, offset, length);
 }
 
 function floats(data: Buffer, count: number): Float64Array {
@@ -248,16 +258,21 @@ export class Recorder {
   /** Packs a frame into a row (copies its arrays). O(count). */
   frameRow(run: string, frame: Frame): FrameRow {
     const n = frame.count;
-    const row: FrameRow = {
-      kind: 'frame', run, index: frame.index, t: frame.t, count: n,
-      x: blob(frame.x, n), y: blob(frame.y, n),
-      z: frame.z ? blob(frame.z, n) : null,
-      id: frame.id ? blob(frame.id, n) : null,
-      intensity: frame.intensity ? blob(frame.intensity, n) : null,
-      bytes: 0,
+    // one buffer for the row's BLOBs, in the order x, y, z, id, intensity
+    const bytes = n * (16 + (frame.z ? 8 : 0) + (frame.id ? 4 : 0) + (frame.intensity ? 8 : 0));
+    const packed = new ArrayBuffer(bytes);
+    let at = 0;
+    const next = (values: Float64Array | Uint32Array): Buffer => {
+      const view = blob(values, n, packed, at);
+      at += view.length;
+      return view;
     };
-    row.bytes = row.x.length + row.y.length + (row.z?.length ?? 0) + (row.id?.length ?? 0) + (row.intensity?.length ?? 0);
-    return row;
+    const x = next(frame.x);
+    const y = next(frame.y);
+    const z = frame.z ? next(frame.z) : null;
+    const id = frame.id ? next(frame.id) : null;
+    const intensity = frame.intensity ? next(frame.intensity) : null;
+    return { kind: 'frame', run, index: frame.index, t: frame.t, count: n, x, y, z, id, intensity, bytes, packed };
   }
 
   /**

@@ -571,6 +571,11 @@ export class Pipeline {
     const fastSource = this.fastSource;
     const groupFastCount = this.groupFastCount;
     let fastCount = 0;
+    // The frame's CVE sums in 2-D, in locals (x then y: steps, ΣΔ, ΣΔ², pairs, ΣΔΔ₋₁, Σ(Δ + Δ₋₁),
+    // ΣΔ'², ΣΔ'Δ'₋₁), added to the frame's scratch record after the loop; 3-D adds per step.
+    let cveSteps = 0, cvePairs = 0;
+    let sumX = 0, squaresX = 0, productsX = 0, pairSumX = 0, squaresCX = 0, productsCX = 0;
+    let sumY = 0, squaresY = 0, productsY = 0, pairSumY = 0, squaresCY = 0, productsCY = 0;
     for (let p = 0; p < present; p++) {
       const index = this.trackIndex[p];
       const base = index * trackWidth;
@@ -579,7 +584,48 @@ export class Pipeline {
       const pz = this.stepZ[p];
       const lastSlot = tracks.lastSlot[index];
       // One-slot step: CVE sums (raw and per-frame corrected).
-      if (lastSlot === slot - 1) {
+      if (lastSlot === slot - 1 && dims === 2) {
+        const lastCell = (lastSlot % ringSize) * capacity + index;
+        const po = base + previousOffset;
+        const hasPair = trackStats[po + 4] === slot - 1;
+        const dx = px - ring[2 * lastCell];
+        const dy = py - ring[2 * lastCell + 1];
+        const dcx = dx - mean[0];
+        const dcy = dy - mean[1];
+        const previousX = trackStats[po];
+        const previousY = trackStats[po + 1];
+        const previousCX = trackStats[po + 2];
+        const previousCY = trackStats[po + 3];
+        addCve(trackStats, base, dx, dcx, hasPair, previousX, previousCX);
+        addCve(trackStats, base + 8, dy, dcy, hasPair, previousY, previousCY);
+        cveSteps++;
+        sumX += dx;
+        squaresX += dx * dx;
+        squaresCX += dcx * dcx;
+        sumY += dy;
+        squaresY += dy * dy;
+        squaresCY += dcy * dcy;
+        if (hasPair) {
+          cvePairs++;
+          productsX += dx * previousX;
+          pairSumX += dx + previousX;
+          productsCX += dcx * previousCX;
+          productsY += dy * previousY;
+          pairSumY += dy + previousY;
+          productsCY += dcy * previousCY;
+        }
+        trackStats[po] = dx;
+        trackStats[po + 1] = dy;
+        trackStats[po + 2] = dcx;
+        trackStats[po + 3] = dcy;
+        trackStats[po + 4] = slot;
+        if (firstLagIsOne) {
+          const r2 = dcx * dcx + dcy * dcy;
+          nonGaussianR2 += r2;
+          nonGaussianR4 += r2 * r2;
+          nonGaussianCount += 1;
+        }
+      } else if (lastSlot === slot - 1) {
         const lastCell = (lastSlot % ringSize) * capacity + index;
         const hasPair = trackStats[base + previousOffset + 2 * dims] === slot - 1;
         let r2 = 0;
@@ -657,6 +703,13 @@ export class Pipeline {
       steps.trackLength[p] = tracks.length[index];
     }
     if (fastCount > 0) this.sumFullLags(fastCount, reach, lagStride);
+    if (dims === 2) {
+      // offsets as in addCve: 0 steps, 1 ΣΔ, 2 ΣΔ², 3 pairs, 4 ΣΔΔ₋₁, 5 Σ(Δ + Δ₋₁), 6 ΣΔ'², 7 ΣΔ'Δ'₋₁
+      frameCve[0] += cveSteps; frameCve[1] += sumX; frameCve[2] += squaresX; frameCve[3] += cvePairs;
+      frameCve[4] += productsX; frameCve[5] += pairSumX; frameCve[6] += squaresCX; frameCve[7] += productsCX;
+      frameCve[8] += cveSteps; frameCve[9] += sumY; frameCve[10] += squaresY; frameCve[11] += cvePairs;
+      frameCve[12] += productsY; frameCve[13] += pairSumY; frameCve[14] += squaresCY; frameCve[15] += productsCY;
+    }
     this.nonGaussianSums[0] += nonGaussianR2;
     this.nonGaussianSums[1] += nonGaussianR4;
     this.nonGaussianSums[2] += nonGaussianCount;

@@ -254,14 +254,13 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
   /** Persistence length L in frames ((L_looks − 1)·k + 1), and in close-pair looks. */
   private persistence = 0;
   private persistenceLooks = 0;
-  /** k: frames per close-pair look; the look index (⌊slot/k⌋) of the last look. */
+  /** k: frames per look; the look index (slot/k) of the last close-pair look. */
   private lookFrames = 1;
   private lastLook = -1;
   // Clark–Evans on every `nearestNeighbourStride`-th baseline frame (and every block's last frame)
   private nearestNeighbourStride = 1;
   // baseline
   private baselineDone = false;
-  private baselineFrames = 0;
   private baselineLooks = 0;
   private baselineClosePairs = 0;
   private baselineCsrPairs = 0;
@@ -452,8 +451,8 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     // Close pairs within r_c, on the look frames only (every frame up to 2·lookHz − 1 Hz): a
     // list of the pairs within r_c + skin kept across looks, measured each look and rebuilt on a
     // uniform grid when a track has moved skin/2 (no O(N²); no kd-tree rebuilt per frame): pairs
-    // i < j, in ascending i then j. Episodes count looks; a look interval with no frame (dropped
-    // frames) continues them, as a dropped frame does at k = 1.
+    // i < j, in ascending i then j. Episodes count looks; a look slot lost to dropped frames
+    // continues them, as a dropped frame does at k = 1.
     let closePairs = 0;
     const lookIndex = slot / lookFrames;
     const look = lookFrame && lookIndex > this.lastLook;
@@ -507,18 +506,15 @@ export class ClumpingDetector implements Detector<ClumpingSummary> {
     }
     if (this.pending.length > 0) this.evaluateMerges(slot, steps.t);
 
-    // Baseline bookkeeping: close-pair rate on every baseline frame, nearest-neighbour z on
+    // Baseline bookkeeping: close-pair rate on every baseline look, nearest-neighbour z on
     // `baselineNearestNeighbourFrames` evenly spaced frames of each baseline block.
     const blockEnd = this.framesInBlock + 1 >= this.blockFrames;
-    if (!this.baselineDone) {
-      this.baselineFrames++;
-      if (look) {
-        // per look: the close-pair rate and its CSR floor N(N − 1)πr_c²/(2A) (detectors.md §3b)
-        this.baselineLooks++;
-        this.baselineClosePairs += closePairs;
-        const area = (steps.field.xMax - steps.field.xMin) * (steps.field.yMax - steps.field.yMin);
-        if (area > 0) this.baselineCsrPairs += (n * (n - 1) * Math.PI * this.closeDistance * this.closeDistance) / (2 * area);
-      }
+    if (!this.baselineDone && look) {
+      // per look: the close-pair rate and its CSR floor N(N − 1)πr_c²/(2A) (detectors.md §3b)
+      this.baselineLooks++;
+      this.baselineClosePairs += closePairs;
+      const area = (steps.field.xMax - steps.field.xMin) * (steps.field.yMax - steps.field.yMin);
+      if (area > 0) this.baselineCsrPairs += (n * (n - 1) * Math.PI * this.closeDistance * this.closeDistance) / (2 * area);
     }
     if ((!this.baselineDone && this.framesInBlock % this.nearestNeighbourStride === 0) || blockEnd) {
       const result = clarkEvans(steps.x, steps.y, n, steps.field, { scratch: this.scratch });

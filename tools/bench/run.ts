@@ -4,7 +4,7 @@
 // The 10-minute soak is separate: node --import tsx/esm tools/bench/liveLatency.ts 1000 100 600 30 30
 import { analyzeThroughput } from './analyzeThroughput.js';
 import { detectorCosts } from './detectorCosts.js';
-import { endToEnd } from './endToEnd.js';
+import { endToEnd, type EndToEndResult } from './endToEnd.js';
 import { machineLine, table, type BenchFigure } from './harness.js';
 import { ingestThroughput } from './ingestThroughput.js';
 import { liveLatency } from './liveLatency.js';
@@ -88,16 +88,28 @@ console.log(`layout: ring ${memory.ringBytes} B + the rest ${memory.otherBytes} 
 if (!skipLive) {
   console.log('\n## End to end (rig process → ws loopback → decode → pipeline → recording → dashboard)\n');
   const packed = await endToEnd('msgpack', 1000, sustainedSeconds);
-  const json = await endToEnd('json', 1000, liveSeconds);
-  for (const r of [json, packed]) {
+  // The JSON ratio from runs of equal length, in two interleaved pairs (JSON then msgpack, then
+  // msgpack then JSON), so that the load of the shared machine and the phase of the run (the
+  // detectors' baselines end after 60 s of data) weigh alike on both encodings; the median (here
+  // the mean) of the pairs' ratios.
+  const pairs: [EndToEndResult, EndToEndResult][] = [];
+  for (let pair = 0; pair < 2; pair++) {
+    const first = await endToEnd(pair === 0 ? 'json' : 'msgpack', 1000, liveSeconds);
+    const second = await endToEnd(pair === 0 ? 'msgpack' : 'json', 1000, liveSeconds);
+    pairs.push(pair === 0 ? [first, second] : [second, first]);
+  }
+  const json = pairs[0][0];
+  for (const r of [...pairs.flat(), packed]) {
     console.log(`${r.encoding}: ${r.centroidsPerSecond.toExponential(2)} centroids/s over ${r.seconds.toFixed(1)} s; queue each second ${JSON.stringify(r.queue)}; ${r.dashboardMessages} dashboard messages; ${r.recordedFrames} frames recorded`);
   }
-  const ratio = packed.centroidsPerSecond / json.centroidsPerSecond;
+  const pairRatios = pairs.map(([j, m]) => m.centroidsPerSecond / j.centroidsPerSecond);
+  const ratio = pairRatios.reduce((sum, r) => sum + r, 0) / pairRatios.length;
+  console.log(`JSON ratio, ${liveSeconds}-s runs in interleaved pairs: ${pairRatios.map((r) => r.toFixed(2)).join(', ')} (mean ${ratio.toFixed(2)}); against the ${sustainedSeconds}-s msgpack run: ${(packed.centroidsPerSecond / json.centroidsPerSecond).toFixed(2)}`);
   // The server works frame after frame on one thread (the rig process uses about a tenth of the
   // other core), so a JSON rig's centroid costs the packed one's plus its JSON decode:
   // ratio ≈ 1 + R_packed / R_json-decode, with R_json-decode from the ingest table above.
   const full = byName(pipeline, 'pipeline, ids given, 1000');
-  console.log(`\nceilings: end to end is ${(packed.centroidsPerSecond / full.median).toFixed(2)}× the pipeline-only figure of this run; the JSON ratio on a serial server is about 1 + ${packed.centroidsPerSecond.toExponential(2)} / ${jsonIngest.toExponential(2)} (JSON decode) = ${(1 + packed.centroidsPerSecond / jsonIngest).toFixed(2)}, measured ${ratio.toFixed(2)}`);
+  console.log(`\nceilings: end to end is ${(packed.centroidsPerSecond / full.median).toFixed(2)}× the pipeline-only figure of this run; the JSON ratio on a serial server is about 1 + ${pairs[0][1].centroidsPerSecond.toExponential(2)} / ${jsonIngest.toExponential(2)} (JSON decode) = ${(1 + pairs[0][1].centroidsPerSecond / jsonIngest).toFixed(2)}, measured ${ratio.toFixed(2)}`);
   // The server runs the pipeline on its main thread, so no encoding takes it past the
   // pipeline-only figure; on that serial thread a JSON rig's centroid costs one JSON decode more,
   // so the ratio's ceiling is 1 + R_pipeline-only / R_json-decode (reached only if receiving,

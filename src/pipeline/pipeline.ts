@@ -809,7 +809,7 @@ export class Pipeline {
    * but the running sums stay in local variables (1.03–1.11× for the core in A/B runs: the loop
    * is bound by its loads from the ring more than by the stores). Two lags per pass over a group
    * share each track's loads of its cell and position (1.19× for the core by interleaved A/B;
-   * three per pass was 0.96× against two, likely from register pressure).
+   * three per pass was 0.96× against two; why was not profiled).
    * x and y only; the z lag sums are formed per track in `processFrame`.
    */
   private sumFullLags(fastCount: number, reach: number, lagStride: number): void {

@@ -51,6 +51,7 @@ export class FrameBuffers {
     const t = message.t;
     if (typeof index !== 'number' || !Number.isInteger(index) || index < 0) throw new ServerError('JOSTLE_E_FRAME', 'frame index must be a non-negative integer');
     if (typeof t !== 'number' || !Number.isFinite(t)) throw new ServerError('JOSTLE_E_FRAME', 'frame t must be a finite number');
+    if (message.rows !== undefined) return this.decodeRows(message, index, t, pixelSize, maxCount);
     const count = this.length(message.x, 'x', floatBits);
     if (this.length(message.y, 'y', floatBits) !== count) throw new ServerError('JOSTLE_E_FRAME', 'frame arrays differ in length');
     if (count > maxCount) throw new ServerError('JOSTLE_E_FRAME_TOO_LARGE', 'frame holds more particles than maxParticlesPerFrame');
@@ -66,6 +67,53 @@ export class FrameBuffers {
     if (message.z != null) frame.z = this.copyFloats(message.z, count, floatBits, pixelSize, this.z);
     if (message.intensity != null) frame.intensity = this.copyFloats(message.intensity, count, floatBits, 1, this.intensity);
     if (message.id != null) frame.id = this.copyIds(message.id, count);
+    return frame;
+  }
+
+  /**
+   * The row-wise form of a frame (an extension beyond CONTRACTS §4, for rigs that write one record
+   * per particle): `rows: [{ x, y, z?, id?, intensity? }, …]` instead of the column arrays. The
+   * first row decides which optional fields the frame has (null counts as absent); every row must
+   * then have the same ones.
+   * The values go into the same reused columns as the columnar form, checked alike (finite
+   * numbers; ids integers in [0, 2³² − 1]); `x`/`y` columns beside `rows` are refused.
+   */
+  private decodeRows(message: Record<string, unknown>, index: number, t: number, pixelSize: number, maxCount: number): Frame {
+    const rows = message.rows;
+    if (!Array.isArray(rows)) throw new ServerError('JOSTLE_E_FRAME', 'frame rows must be an array of objects');
+    if (message.x != null || message.y != null || message.z != null || message.id != null || message.intensity != null) {
+      throw new ServerError('JOSTLE_E_FRAME', 'a frame has either rows or x and y arrays, not both');
+    }
+    const count = rows.length;
+    if (count > maxCount) throw new ServerError('JOSTLE_E_FRAME_TOO_LARGE', 'frame holds more particles than maxParticlesPerFrame');
+    this.ensure(count);
+    const first = count > 0 ? (rows[0] as Record<string, unknown> | null) : undefined;
+    const hasZ = first?.z != null;
+    const hasId = first?.id != null;
+    const hasIntensity = first?.intensity != null;
+    const { x, y, z, id, intensity } = this;
+    for (let p = 0; p < count; p++) {
+      const row = rows[p] as Record<string, unknown> | null;
+      if (row === null || typeof row !== 'object' || Array.isArray(row)) throw new ServerError('JOSTLE_E_FRAME', 'frame rows must be an array of objects');
+      x[p] = rowFloat(row.x, pixelSize);
+      y[p] = rowFloat(row.y, pixelSize);
+      if ((row.z != null) !== hasZ || (row.id != null) !== hasId || (row.intensity != null) !== hasIntensity) {
+        throw new ServerError('JOSTLE_E_FRAME', 'frame rows differ in their fields (the first row sets them)');
+      }
+      if (hasZ) z[p] = rowFloat(row.z, pixelSize);
+      if (hasIntensity) intensity[p] = rowFloat(row.intensity, 1);
+      if (hasId) {
+        const v = row.id;
+        if (typeof v !== 'number' || !Number.isInteger(v) || v < 0 || v > 0xffffffff) {
+          throw new ServerError('JOSTLE_E_FRAME', 'frame id must hold integers in [0, 4294967295]');
+        }
+        id[p] = v;
+      }
+    }
+    const frame: Frame = { index, t, count, x, y };
+    if (hasZ) frame.z = z;
+    if (hasIntensity) frame.intensity = intensity;
+    if (hasId) frame.id = id;
     return frame;
   }
 
@@ -184,4 +232,11 @@ export class FrameBuffers {
     for (let i = 0; i < count; i++) out[i] = view.getUint32(i * 4, true);
     return out;
   }
+}
+
+/** One checked number of a row, scaled: a number that is finite. */
+function rowFloat(value: unknown, scale: number): number {
+  if (typeof value !== 'number') throw new ServerError('JOSTLE_E_FRAME', 'frame rows need numbers for x and y (and z, intensity where given)');
+  if (value - value !== 0) throw new ServerError('JOSTLE_E_NOT_FINITE', 'frame holds a value that is not finite');
+  return value * scale;
 }

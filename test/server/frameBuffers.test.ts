@@ -98,6 +98,58 @@ describe('FrameBuffers', () => {
       expect(code({ index: 0, t: 0, x: [1, 2, 3, 4], y: [1, 2, 3, 4] })).toBe('JOSTLE_E_FRAME_TOO_LARGE');
       expect(code({ index: 0, t: 0, x: [], y: [] })).toBe('accepted');
     });
+
+    it('decode(rows) gives the same columns as decode(arrays), optional fields, pixel size and ids included', () => {
+      // the row-wise extension: one record per particle instead of one array per field
+      const x = [1 / 3, -2.5, 7];
+      const y = [0.1, 1e-300, -4];
+      const z = [0, 2, 3];
+      const intensity = [100, 250.5, 80];
+      const id = [4294967295, 0, 12];
+      const columns = new FrameBuffers().decode({ index: 4, t: 0.2, x, y, z, intensity, id }, 64, 0.5, 10);
+      const rows = x.map((_, p) => ({ id: id[p], x: x[p], y: y[p], z: z[p], intensity: intensity[p] }));
+      const fromRows = new FrameBuffers().decode({ index: 4, t: 0.2, rows }, 64, 0.5, 10);
+      expect(fromRows.count).toBe(3);
+      for (const field of ['x', 'y', 'z', 'intensity', 'id'] as const) {
+        expect(Array.from(fromRows[field]!.subarray(0, 3)), field).toEqual(Array.from(columns[field]!.subarray(0, 3)));
+      }
+      expect(fromRows.x[0]).toBe((1 / 3) * 0.5); // scaled by the pixel size, like the columns
+      expect(fromRows.intensity![1]).toBe(250.5); // intensity is not scaled
+      // optional fields absent (or null) in the first row stay absent
+      const plain = new FrameBuffers().decode({ index: 0, t: 0, rows: [{ x: 1, y: 2, z: null }, { x: 3, y: 4 }] }, 64, 1, 10);
+      expect(plain.count).toBe(2);
+      expect(plain.z).toBeUndefined();
+      expect(plain.id).toBeUndefined();
+      expect(Array.from(plain.y.subarray(0, 2))).toEqual([2, 4]);
+      expect(new FrameBuffers().decode({ index: 0, t: 0, rows: [] }, 64, 1, 10).count).toBe(0);
+    });
+
+    it('decode(rows) rejects a bad row, ragged fields, columns beside rows and too many rows', () => {
+      const b = new FrameBuffers();
+      const code = (m: Record<string, unknown>) => {
+        try {
+          b.decode(m, 64, 1, 3);
+          return 'accepted';
+        } catch (error) {
+          return (error as { code: string }).code;
+        }
+      };
+      const frame = (rows: unknown, extra: Record<string, unknown> = {}) => ({ index: 0, t: 0, rows, ...extra });
+      expect(code(frame({ 0: { x: 1, y: 1 } }))).toBe('JOSTLE_E_FRAME'); // not an array
+      expect(code(frame([{ x: 1, y: 1 }, [1, 2]]))).toBe('JOSTLE_E_FRAME'); // a row that is not a record
+      expect(code(frame([null]))).toBe('JOSTLE_E_FRAME');
+      expect(code(frame([{ x: 1 }]))).toBe('JOSTLE_E_FRAME'); // y missing
+      expect(code(frame([{ x: '1', y: 1 }]))).toBe('JOSTLE_E_FRAME');
+      expect(code(frame([{ x: 1, y: NaN }]))).toBe('JOSTLE_E_NOT_FINITE'); // MessagePack can carry NaN
+      expect(code(frame([{ x: 1, y: 1, z: -Infinity }]))).toBe('JOSTLE_E_NOT_FINITE');
+      expect(code(frame([{ x: 1, y: 1, id: 1 }, { x: 2, y: 2 }]))).toBe('JOSTLE_E_FRAME'); // ragged: the first row sets the fields
+      expect(code(frame([{ x: 1, y: 1 }, { x: 2, y: 2, intensity: 5 }]))).toBe('JOSTLE_E_FRAME');
+      expect(code(frame([{ x: 1, y: 1, id: -1 }]))).toBe('JOSTLE_E_FRAME');
+      expect(code(frame([{ x: 1, y: 1, id: 2 ** 32 }]))).toBe('JOSTLE_E_FRAME');
+      expect(code(frame([{ x: 1, y: 1 }], { x: [1], y: [1] }))).toBe('JOSTLE_E_FRAME'); // both forms
+      expect(code(frame([{ x: 1, y: 1 }, { x: 1, y: 1 }, { x: 1, y: 1 }, { x: 1, y: 1 }]))).toBe('JOSTLE_E_FRAME_TOO_LARGE');
+      expect(code(frame([{ x: 1, y: 1, id: 3 }, { x: 1, y: 1, id: 4 }]))).toBe('accepted');
+    });
   });
 });
 

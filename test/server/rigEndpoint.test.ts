@@ -51,6 +51,42 @@ describe('/rig', () => {
     await c.close();
   });
 
+  it('accepts a row-wise rig (one record per particle) in JSON and in MessagePack, with the same report as a columnar rig', async () => {
+    // the server's row-wise extension of the frame message: rows: [{ x, y, id }, …]
+    const run = async (name: string, encoding: 'json' | 'msgpack', layout: 'rows' | 'columns') => {
+      const rig = await RigClient.connect(`${server.ws}/rig`, { token: TOKEN, encoding, layout });
+      await rig.open({ type: 'run', run: name, frameInterval: 0.05, radius: 0.5, temperature: 22 });
+      for (const frame of frames) await rig.frame(frame);
+      await rig.end();
+      await until(() => server.registry.get(name)?.state === 'ended');
+      expect(rig.errors).toEqual([]);
+      await rig.close();
+      return server.registry.get(name)!.pipeline.report();
+    };
+    const columns = await run('rows-baseline', 'msgpack', 'columns');
+    const jsonRows = await run('rows-json', 'json', 'rows');
+    expect(jsonRows.input.frames).toBe(40);
+    expect(jsonRows.msd).toEqual(columns.msd);
+    expect(jsonRows.diffusion.coefficient).toEqual(columns.diffusion.coefficient);
+    // the independent encoder's maps, as a rig in another language would send its records
+    const c = await collect(`${server.ws}/rig`, auth);
+    c.socket.send(independentEncode({ type: 'run', run: 'rows-msgpack', frameInterval: 0.05, radius: 0.5, temperature: 22 }));
+    await c.next((m) => m.type === 'accepted');
+    for (const f of frames) {
+      const rows = Array.from({ length: f.count }, (_, p) => ({ id: f.id![p], x: f.x[p], y: f.y[p] }));
+      c.socket.send(independentEncode({ type: 'frame', index: f.index, t: f.t, rows }));
+    }
+    c.socket.send(independentEncode({ type: 'end' }));
+    await until(() => server.registry.get('rows-msgpack')?.state === 'ended');
+    expect(server.registry.get('rows-msgpack')!.pipeline.report().msd).toEqual(columns.msd);
+    // a ragged row is refused like any bad frame field, and the run goes on
+    c.socket.send(independentEncode({ type: 'run', run: 'rows-msgpack', frameInterval: 0.05 }));
+    await c.next((m) => m.type === 'accepted');
+    c.socket.send(independentEncode({ type: 'frame', index: 100, t: 5, rows: [{ x: 1, y: 2, id: 1 }, { x: 3, y: 4 }] }));
+    expect(await c.next((m) => m.type === 'error')).toMatchObject({ code: 'JOSTLE_E_FRAME' });
+    await c.close();
+  });
+
   it('accepts the independent @msgpack/msgpack encoder with plain arrays', async () => {
     const c = await collect(`${server.ws}/rig`, auth);
     c.socket.send(independentEncode({ type: 'run', run: 'plain-msgpack', frameInterval: 0.05 }));

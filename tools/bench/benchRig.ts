@@ -6,7 +6,9 @@
 // one frame whose time goes backwards (which raises a `timing` alert at once) and prints
 // { inject: <epoch ms> } just before sending it; paced, it prints { i, s } (frame index, epoch ms
 // when sent) for every frame, for the latency figures.
-// Usage: tsx tools/bench/benchRig.ts <ws url> <token> <msgpack|json> <particles> <seconds> [pace=0] [injectEvery=0] [frameInterval=0.001]
+// Encodings: msgpack (columns of bins), json (the contract's JSON: one array of numbers per
+// field), json-rows (a JSON row-wise rig: one record per particle, the server's `rows` extension).
+// Usage: tsx tools/bench/benchRig.ts <ws url> <token> <msgpack|json|json-rows> <particles> <seconds> [pace=0] [injectEvery=0] [frameInterval=0.001]
 import { CycledField } from './benchFrames.js';
 import { RigClient } from '../rig/rigClient.js';
 
@@ -17,7 +19,11 @@ const seconds = Number(secondsText);
 const pace = Number(process.argv[7] ?? 0);
 const injectEvery = Number(process.argv[8] ?? 0);
 const frameInterval = Number(process.argv[9] ?? 0.001);
-const rig = await RigClient.connect(url, { token, encoding: encoding === 'json' ? 'json' : 'msgpack' });
+const rig = await RigClient.connect(url, {
+  token,
+  encoding: encoding === 'json' || encoding === 'json-rows' ? 'json' : 'msgpack',
+  layout: encoding === 'json-rows' ? 'rows' : 'columns',
+});
 await rig.open({ type: 'run', run: `bench-${encoding}`, frameInterval, exposure: 0.0008, radius: 0.5, temperature: 22, label: 'benchmark rig' });
 // Precomputed steps, cycled (so that generating them does not load the rig's core).
 const synthetic = new CycledField(particles, frameInterval);

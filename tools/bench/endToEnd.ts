@@ -2,7 +2,8 @@
 // (tools/bench/benchRig.ts) → ws → decode → pipeline → recording on → one dashboard watching,
 // both cores (the rig included). Reports centroids/s over the run, and the queue: frames sent
 // by the rig minus frames the pipeline has taken, sampled every second (flat = keeping up).
-// Run: node --import tsx/esm tools/bench/endToEnd.ts [msgpack|json] [particles=1000] [seconds=20] [thread|event-loop]
+// Encodings: msgpack bins, json (the contract's JSON columns), json-rows (a JSON row-wise rig).
+// Run: node --import tsx/esm tools/bench/endToEnd.ts [msgpack|json|json-rows] [particles=1000] [seconds=20] [thread|event-loop]
 // (the last: where the recording's batches are written, the server's `recordingThread` option)
 import { spawn } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
@@ -46,7 +47,10 @@ function processCpuSeconds(pid: number | undefined): number | null {
 }
 const CLOCK_TICKS = 100; // USER_HZ on Linux
 
-export async function endToEnd(encoding: 'msgpack' | 'json', particles = 1000, seconds = 20, recordingThread = true): Promise<EndToEndResult> {
+/** The rig's wire form: MessagePack bins, the contract's JSON columns, or JSON rows. */
+export type BenchEncoding = 'msgpack' | 'json' | 'json-rows';
+
+export async function endToEnd(encoding: BenchEncoding, particles = 1000, seconds = 20, recordingThread = true): Promise<EndToEndResult> {
   const data = mkdtempSync(join(tmpdir(), 'jostle-bench-'));
   const server = await startServer({ port: 0, host: '127.0.0.1', data, token: 'bench-token-123', log: () => undefined, quotaBytes: 64 * 2 ** 30, recordingThread });
   try {
@@ -121,7 +125,7 @@ export async function endToEnd(encoding: 'msgpack' | 'json', particles = 1000, s
 }
 
 if (import.meta.url === `file://${process.argv[1]}`) {
-  const encoding = process.argv[2] === 'json' ? 'json' : 'msgpack';
+  const encoding: BenchEncoding = process.argv[2] === 'json' || process.argv[2] === 'json-rows' ? process.argv[2] : 'msgpack';
   const result = await endToEnd(encoding, Number(process.argv[3] ?? 1000), Number(process.argv[4] ?? 20), process.argv[5] !== 'event-loop');
   console.log(JSON.stringify(result));
 }

@@ -10,6 +10,12 @@ export interface RigClientOptions {
   token?: string;
   /** Wire encoding (default `msgpack`, with typed-array bins). */
   encoding?: 'msgpack' | 'json';
+  /**
+   * How a frame's centroids are laid out: `columns` (default; CONTRACTS §4: one array per field)
+   * or `rows` (the server's row-wise extension: `rows: [{ x, y, z?, id?, intensity? }, …]`, one
+   * record per particle, as a rig that writes per-particle records sends them).
+   */
+  layout?: 'columns' | 'rows';
   /** Pause sending while the socket holds more than this, bytes (default 4 MiB). */
   highWaterBytes?: number;
   /** Called for each alert the server sends. */
@@ -25,7 +31,8 @@ const unpackr = new Unpackr({ useRecords: false, mapsAsObjects: true });
  * A rig as the server sees one (CONTRACTS §4): connects to `ws://…/rig`, sends `run`, then
  * frames, readings and tags, and `end`. In MessagePack, a frame's arrays go as typed-array bins
  * (`Float64Array` → little-endian float64 `bin`, `Uint32Array` ids → uint32 `bin`), sliced to
- * `count`; in JSON, as arrays of numbers. Sending waits while the socket is backed up.
+ * `count`; in JSON, as arrays of numbers (with `layout: 'rows'`, as one record per particle in
+ * either encoding). Sending waits while the socket is backed up.
  * Used by `jostle replay`, `jostle simulate --url` and the demo.
  *
  * @example
@@ -39,10 +46,12 @@ export class RigClient {
   readonly alerts: AlertMessage[] = [];
   private accepted: ((message: AcceptedMessage) => void) | undefined;
   private readonly encoding: 'msgpack' | 'json';
+  private readonly layout: 'columns' | 'rows';
   private readonly highWaterBytes: number;
 
   private constructor(readonly socket: WebSocket, private readonly options: RigClientOptions) {
     this.encoding = options.encoding ?? 'msgpack';
+    this.layout = options.layout ?? 'columns';
     this.highWaterBytes = options.highWaterBytes ?? 4 * 1024 * 1024;
     socket.on('message', (data, isBinary) => {
       const message = (isBinary ? unpackr.unpack(data as Buffer) : JSON.parse(String(data))) as { type: string };
@@ -87,6 +96,19 @@ export class RigClient {
   async frame(frame: Frame): Promise<void> {
     const n = frame.count;
     const message: Record<string, unknown> = { type: 'frame', index: frame.index, t: frame.t };
+    if (this.layout === 'rows') {
+      const rows: Record<string, number>[] = new Array(n);
+      for (let p = 0; p < n; p++) {
+        const row: Record<string, number> = { x: frame.x[p], y: frame.y[p] };
+        if (frame.z) row.z = frame.z[p];
+        if (frame.id) row.id = frame.id[p];
+        if (frame.intensity) row.intensity = frame.intensity[p];
+        rows[p] = row;
+      }
+      message.rows = rows;
+      await this.write(message);
+      return;
+    }
     const put = (name: string, values: Float64Array | Uint32Array | undefined) => {
       if (!values) return;
       const view = values.subarray(0, n);

@@ -1,7 +1,40 @@
 import { encodeMessage, type Encoding } from './decodeMessage.js';
-import type { RunState } from './protocol.js';
+import type { RunPositions, RunState } from './protocol.js';
 
 const cache = new WeakMap<RunState, Map<Encoding, Buffer | string>>();
+/** JSON text of each trail frame, by its (never changed) plain-array object. */
+const frameJson = new WeakMap<object, string>();
+/** Stands for the positions in the JSON of the rest of the state; spliced out (it is the last key). */
+const MARK = '@jostle:positions@';
+const POSITIONS_MARK = `"positions":"${MARK}"`;
+
+/**
+ * JSON text of a state's positions, equal to `JSON.stringify(positions)`, each frame's part
+ * encoded once per frame object and reused by later updates that carry the same frame (the live
+ * run shares a kept frame's object between its states). O(new frames' centroids).
+ */
+export function positionsJson(positions: RunPositions): string {
+  const parts: string[] = [];
+  for (const frame of positions.frames) {
+    let text = frameJson.get(frame);
+    if (text === undefined) {
+      text = JSON.stringify(frame);
+      frameJson.set(frame, text);
+    }
+    parts.push(text);
+  }
+  return `{"t":${JSON.stringify(positions.t)},"frames":[${parts.join(',')}]}`;
+}
+
+/** `{type: 'update', ...state}` as JSON, the positions from their per-frame cache. */
+function updateJson(state: RunState): string {
+  const { positions, ...rest } = state;
+  // positions last, as a marker string, then replaced by its text: the last occurrence of the
+  // marker is this key's (a label holding the same characters comes earlier in the text)
+  const text = JSON.stringify({ type: 'update', ...rest, positions: MARK });
+  const at = text.lastIndexOf(POSITIONS_MARK);
+  return `${text.slice(0, at)}"positions":${positionsJson(positions)}${text.slice(at + POSITIONS_MARK.length)}`;
+}
 
 /**
  * Encodes an `update` message for one dashboard, encoding the (large) run state only once per
@@ -9,7 +42,9 @@ const cache = new WeakMap<RunState, Map<Encoding, Buffer | string>>();
  * and each dashboard's `coalesced` count is spliced in as a last field. In JSON the text is
  * spliced before its closing brace; in MessagePack the map header's count is raised by one
  * (fixmap, map16 or map32) and the key/value pair appended, which is a valid map of the
- * MessagePack specification. O(size of the state) once, then O(size) copy per dashboard.
+ * MessagePack specification. O(size of the state) once, then O(size) copy per dashboard. In JSON
+ * the positions' frames are taken from a per-frame cache (`positionsJson`): a kept trail frame is
+ * encoded once however many updates carry it.
  *
  * @example
  * encodeUpdate(state, 'json', 2) // → '{"type":"update","run":"a",…,"coalesced":2}'
@@ -22,7 +57,7 @@ export function encodeUpdate(state: RunState, encoding: Encoding, coalesced: num
   }
   let body = byEncoding.get(encoding);
   if (body === undefined) {
-    body = encodeMessage({ type: 'update', ...state }, encoding);
+    body = encoding === 'json' && state.positions ? updateJson(state) : encodeMessage({ type: 'update', ...state }, encoding);
     byEncoding.set(encoding, body);
   }
   if (typeof body === 'string') return `${body.slice(0, -1)},"coalesced":${coalesced}}`;

@@ -78,10 +78,11 @@ export class LiveRun {
   private readonly flush$ = new Subject<void>();
   private readonly subscriptions: Subscription[] = [];
   private readonly history: RunHistory = { t: [], reportedCelsius: [], impliedCelsius: [], impliedLow: [], impliedHigh: [], driftVx: [], driftVy: [], driftX: [], driftY: [] };
-  // The last `trailFrames` frames' positions, newest first, in reused typed arrays (a memcpy per
-  // frame, no per-centroid allocation); turned into plain arrays only when a dashboard draws them.
-  private readonly trail: { t: number; count: number; x: Float64Array; y: Float64Array; id: Uint32Array; hasId: boolean }[] = [];
-  private readonly spareTrail: { t: number; count: number; x: Float64Array; y: Float64Array; id: Uint32Array; hasId: boolean }[] = [];
+  // The last `trailFrames` kept frames' positions (at least `trailSpacingMs` apart in data time),
+  // newest first, in reused typed arrays (a memcpy per kept frame, no per-centroid allocation);
+  // turned into plain arrays, or JSON text kept with the frame, only when a dashboard draws them.
+  private readonly trail: TrailFrame[] = [];
+  private readonly spareTrail: TrailFrame[] = [];
   private pendingRows = 0;
   private quotaWarned = false;
   private rate = { at: 0, frames: 0, value: 0 };
@@ -355,8 +356,14 @@ export class LiveRun {
 
   private keepTrail(frame: Frame): void {
     if (this.restoring) return;
+    // Frames closer than the spacing to the newest kept one are passed over (a frame earlier than
+    // it, from a rig clock going backwards, is kept, as every frame was before the spacing).
+    const newest = this.trail[0];
+    const spacing = this.options.trailSpacingMs / 1000;
+    if (newest !== undefined && frame.t >= newest.t && frame.t - newest.t < spacing * (1 - 1e-9)) return;
     const n = frame.count;
-    const slot = this.spareTrail.pop() ?? { t: 0, count: 0, x: new Float64Array(0), y: new Float64Array(0), id: new Uint32Array(0), hasId: false };
+    const slot: TrailFrame = this.spareTrail.pop() ?? { t: 0, count: 0, x: new Float64Array(0), y: new Float64Array(0), id: new Uint32Array(0), hasId: false, entry: undefined };
+    slot.entry = undefined;
     if (slot.x.length < n) {
       slot.x = new Float64Array(n);
       slot.y = new Float64Array(n);
@@ -372,15 +379,15 @@ export class LiveRun {
     if (this.trail.length > this.options.trailFrames) this.spareTrail.push(this.trail.pop()!);
   }
 
+  /**
+   * The kept frames as plain arrays, each frame's built once and shared by every later state that
+   * still carries it (the arrays are never changed afterwards; a JSON update also encodes each
+   * frame's part once, see `positionsJson`).
+   */
   private positions(): RunPositions {
     return {
       t: this.trail[0]?.t ?? null,
-      frames: this.trail.map((f) => ({
-        t: f.t,
-        x: Array.from(f.x.subarray(0, f.count)),
-        y: Array.from(f.y.subarray(0, f.count)),
-        id: f.hasId ? Array.from(f.id.subarray(0, f.count)) : null,
-      })),
+      frames: this.trail.map((f) => (f.entry ??= trailEntry(f))),
     };
   }
 
@@ -430,4 +437,24 @@ export class LiveRun {
       recording: this.recording,
     };
   }
+}
+
+/** One kept frame of the trail: reused typed arrays, and its plain-array form once built. */
+interface TrailFrame {
+  t: number;
+  count: number;
+  x: Float64Array;
+  y: Float64Array;
+  id: Uint32Array;
+  hasId: boolean;
+  entry: RunPositions['frames'][number] | undefined;
+}
+
+function trailEntry(f: TrailFrame): RunPositions['frames'][number] {
+  return {
+    t: f.t,
+    x: Array.from(f.x.subarray(0, f.count)),
+    y: Array.from(f.y.subarray(0, f.count)),
+    id: f.hasId ? Array.from(f.id.subarray(0, f.count)) : null,
+  };
 }

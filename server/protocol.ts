@@ -156,9 +156,13 @@ export interface RunHistory {
 
 /** Latest particle positions and short trails (the previous frames' positions), µm. */
 export interface RunPositions {
-  /** Frame time of the newest frame, s. */
+  /** Frame time of the newest kept frame, s. */
   t: number | null;
-  /** Newest first: `frames[0]` is the latest frame; each holds x, y and ids (when given). */
+  /**
+   * Newest first: `frames[0]` is the latest kept frame; each holds x, y and ids (when given). Kept
+   * frames are at least the server's `trailSpacingMs` apart in data time (default 50 ms), so at
+   * fast frame rates `frames[0]` may be up to that much older than the newest frame.
+   */
   frames: { t: number; x: number[]; y: number[]; id: number[] | null }[];
 }
 

@@ -43,6 +43,11 @@ export interface ServerOptions {
   summaryRecordMs?: number;
   /** Frames kept for the position trails (default 8). */
   trailFrames?: number;
+  /**
+   * Least data time between two frames kept for the trails, ms (default 50; 0 keeps every
+   * frame): the trails then span the same time (8 × 50 ms) at 20 or 1,000 frames/s.
+   */
+  trailSpacingMs?: number;
   /** Static files of the dashboard (default `web/dist`, else `web/index.html` as a placeholder). */
   webRoot?: string;
   /** Where log lines go (default stderr). Never given a secret. */
@@ -73,6 +78,7 @@ export const SERVER_DEFAULTS = {
   recordingThread: true,
   summaryRecordMs: 10_000,
   trailFrames: 8,
+  trailSpacingMs: 50,
 } as const;
 
 const LOOPBACK = new Set(['127.0.0.1', '::1', 'localhost']);
@@ -111,6 +117,7 @@ export function resolveServerOptions(options: ServerOptions = {}): ResolvedServe
   integer('flushMs', 1, 1000);
   integer('summaryRecordMs', 10);
   integer('trailFrames', 1, 100);
+  integer('trailSpacingMs', 0, 10_000);
   if (typeof merged.recordingThread !== 'boolean') throw new RangeError('server option recordingThread requires true or false');
   if (!(Number(merged.summaryHz) > 0 && Number(merged.summaryHz) <= 10)) throw new RangeError('server option summaryHz requires a value in (0, 10]');
   if (typeof merged.host !== 'string' || merged.host === '') throw new RangeError('server option host requires a host name or address');

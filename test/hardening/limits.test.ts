@@ -35,6 +35,7 @@ describe('resolveServerOptions', () => {
       flushMs: [0, 1001],
       port: [-1, 65536, 1.5],
       trailFrames: [0, 101],
+      trailSpacingMs: [-1, 10_001, 2.5],
     };
     for (const [name, values] of Object.entries(bad)) {
       expect(Object.keys(SERVER_DEFAULTS)).toContain(name);

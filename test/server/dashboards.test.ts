@@ -113,6 +113,42 @@ describe('/watch', () => {
     await Promise.all([dash.close(), rig.close()]);
   });
 
+  it('keeps trail frames at least trailSpacingMs apart in data time (default 50 ms), every frame at 20 frames/s, and sends them to a JSON dashboard as built', async () => {
+    // 1 kHz: 8 frames 50 ms apart span 0.35 s of motion instead of 7 ms
+    const fast = brownianFrames({ seed: 23, particles: 5, frames: 600, frameInterval: 0.001, diffusion: 0.4, sigma: 0.02 });
+    const rig = await RigClient.connect(`${server.ws}/rig`, { token: TOKEN });
+    await rig.open({ type: 'run', run: 'trail-fast', frameInterval: 0.001 });
+    const watcher = await collect(`${server.ws}/watch?run=trail-fast&token=${TOKEN}`);
+    for (const frame of fast) await rig.frame(frame);
+    await until(() => server.registry.get('trail-fast')?.pipeline.counts().frames === 600);
+    const positions = server.registry.get('trail-fast')!.runState().positions;
+    const times = positions.frames.map((f) => f.t);
+    expect(times).toHaveLength(8);
+    expect(positions.t).toBe(times[0]);
+    for (let i = 1; i < times.length; i++) expect(times[i - 1] - times[i]).toBeGreaterThanOrEqual(0.05 - 1e-9);
+    expect(fast[599].t - times[0]).toBeLessThan(0.05); // the newest kept frame is at most 50 ms old
+    // each kept frame holds that frame's positions
+    const kept = fast.find((f) => f.t === times[3])!;
+    expect(positions.frames[3].x).toEqual(Array.from(kept.x.subarray(0, kept.count)));
+    expect(positions.frames[3].id).toEqual(Array.from(kept.id!.subarray(0, kept.count)));
+    // the JSON dashboard's updates carry trails of the same spacing (from the per-frame text cache)
+    await until(() => watcher.messages.some((m) => m.type === 'update'));
+    const update = watcher.messages.filter((m) => m.type === 'update').at(-1) as Record<string, any>;
+    const sent: number[] = update.positions.frames.map((f: { t: number }) => f.t);
+    for (let i = 1; i < sent.length; i++) expect(sent[i - 1] - sent[i]).toBeGreaterThanOrEqual(0.05 - 1e-9);
+    expect(update.positions.t).toBe(sent[0]);
+    await rig.end();
+    await Promise.all([watcher.close(), rig.close()]);
+    // at 20 frames/s (50 ms apart) every frame is a trail frame
+    const slow = await RigClient.connect(`${server.ws}/rig`, { token: TOKEN });
+    await slow.open({ type: 'run', run: 'trail-slow', frameInterval: 0.05 });
+    for (const frame of framesA.slice(0, 30)) await slow.frame(frame);
+    await until(() => server.registry.get('trail-slow')?.pipeline.counts().frames === 30);
+    expect(server.registry.get('trail-slow')!.runState().positions.frames.map((f) => f.t)).toEqual(framesA.slice(22, 30).map((f) => f.t).reverse());
+    await slow.end();
+    await slow.close();
+  });
+
   it('refuses a dashboard for an unknown run with 404', async () => {
     await expect(collect(`${server.ws}/watch?run=nobody&token=${TOKEN}`)).rejects.toMatchObject({ status: 404 });
   });

@@ -19,23 +19,31 @@ export interface TrackMemory {
   measuredWithDetectors: number;
 }
 
-function used(): number {
-  (globalThis as { gc?: () => void }).gc?.();
+// Array buffers freed by a collection leave `memoryUsage().arrayBuffers` only when their backing
+// stores are released, which may come after `gc()` returns: without the pause below the previous
+// measurement's pipeline was sometimes still counted at `before` and freed during the next run,
+// so that run read as growing by under 1 kB per track.
+async function used(): Promise<number> {
+  const gc = (globalThis as { gc?: () => void }).gc;
+  for (let i = 0; i < 3; i++) {
+    gc?.();
+    await new Promise((resolve) => setTimeout(resolve, 50));
+  }
   const m = process.memoryUsage();
   return m.arrayBuffers + m.heapUsed;
 }
 
-function measure(tracks: number, detectors: boolean): number {
+async function measure(tracks: number, detectors: boolean): Promise<number> {
   const frames = benchFrames({ particles: tracks, frames: 30 });
-  const before = used();
+  const before = await used();
   const pipeline = new Pipeline({ frameInterval: 0.001, radius: 0.5, temperature: 22 }, detectors ? createDetectors : undefined, refreshContext);
   for (const frame of frames) pipeline.push(frame);
-  const after = used();
+  const after = await used();
   if (pipeline.counts().frames !== frames.length) throw new Error('frames refused');
   return (after - before) / tracks;
 }
 
-export function trackMemory(tracks = 10_000): TrackMemory {
+export async function trackMemory(tracks = 10_000): Promise<TrackMemory> {
   const lags = msdLags(16, 128, 10);
   const ringSize = lags[lags.length - 1] + 1;
   const layout = statsLayout(2, lags.length);
@@ -44,9 +52,9 @@ export function trackMemory(tracks = 10_000): TrackMemory {
   // track), lastSlot, runStart, mark, length, id (4 B each), firstT, lastT (8 B), group (2 B),
   // dense id table (4 B), the Map entry of the live table (~40 B, heap)
   const otherBytes = layout.lagBase * 8 + 5 * 4 + 2 * 8 + 2 + 4 + 40;
-  return { tracks, ringBytes, otherBytes, measuredPipelineOnly: measure(tracks, false), measuredWithDetectors: measure(tracks, true) };
+  return { tracks, ringBytes, otherBytes, measuredPipelineOnly: await measure(tracks, false), measuredWithDetectors: await measure(tracks, true) };
 }
 
 if (import.meta.url === `file://${process.argv[1]}`) {
-  console.log(JSON.stringify(trackMemory()));
+  console.log(JSON.stringify(await trackMemory()));
 }

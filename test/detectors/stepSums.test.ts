@@ -165,6 +165,32 @@ describe('FrameSteps.sums', () => {
     }
   });
 
+  it('leaves the drift detector deciding exactly as without the sums at 1,000 frames/s, where it looks at one frame in 5 and takes the other frames from the sums alone', () => {
+    const frames = brownianFrames({ seed: 31, particles: 80, frames: 6000, frameInterval: 0.001, diffusion: 0.4, sigma: 0.02, drift: [2, -1.5], trackFrames: 1500 });
+    const conditions: Record<string, string[]> = {};
+    const made: Detector[] = [];
+    const detectors = (options: ResolvedPipelineOptions): Detector[] => {
+      const [given] = createDetectors(options).filter((d) => d.name === 'drift');
+      const [own] = createDetectors(options).filter((d) => d.name === 'drift');
+      made.push(given, own);
+      return [
+        { name: 'given', push: (steps, context) => record('given', steps, given.push(steps, context)), summary: () => given.summary() },
+        { name: 'own', push: (steps, context) => record('own', steps, own.push({ ...steps, sums: undefined }, context)), summary: () => own.summary() },
+      ];
+    };
+    const record = (name: string, steps: FrameSteps, raised: readonly { key: string; level: string | null }[]) => {
+      (conditions[name] ??= []).push(...raised.map((c) => `${steps.frameIndex}:${c.key}:${c.level}`));
+      return raised as never;
+    };
+    const pipeline = new Pipeline({ frameInterval: 0.001, exposure: 0, radius: 0.5, temperature: 22 }, detectors, refreshContext);
+    for (const frame of frames) pipeline.push(frame);
+    const [given, own] = made.map((d) => d.summary() as Record<string, unknown>);
+    expect(given.flowLookFrames).toBe(5);
+    expect((given.frames as number)).toBeGreaterThan(5000);
+    expectClose(given, own, 'drift at 1 kHz');
+    expect(conditions.given ?? []).toEqual(conditions.own ?? []);
+  });
+
   it('gives the temperature detector\'s step ring the same sums over any run of frames as the ring forms itself', () => {
     const given = new StepCovarianceRing(4096);
     const own = new StepCovarianceRing(4096);

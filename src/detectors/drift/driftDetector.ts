@@ -297,7 +297,14 @@ export class DriftDetector implements Detector<DriftSummary> {
       out.push(this.clearCondition('drift:jump', steps.t, 'stage jump over', 'jump |z|', this.jumpThreshold));
     }
     const k = this.lookFrames;
-    const n = this.gather(steps, k === 1);
+    // At k > 1 this frame's steps serve only through their mean and spread (the look takes its
+    // own displacements): when the pipeline's sums cover every step (all finite, no fiducial
+    // list), their count is all that is needed, and the steps are not copied.
+    const whole = steps.sums;
+    const n =
+      k > 1 && !this.fiducials && whole !== undefined && whole.steps === steps.stepCount && Number.isFinite(whole.squares)
+        ? steps.stepCount
+        : this.gather(steps, k === 1);
     // at k > 1, on slots 0, k, 2k, …: the displacements since the previous look (kept even on a
     // frame with too few one-frame steps, so the next look has its start positions)
     const lookSlot = k > 1 && steps.slot % k === 0;
@@ -525,6 +532,9 @@ export class DriftDetector implements Detector<DriftSummary> {
       this.lookX0 = new Float64Array(size);
       this.lookY0 = new Float64Array(size);
     }
+    // the look's medians are taken in bufMed: up to `count` displacements, which may be more than
+    // the frame's one-frame steps that `gather` sized it for (tracks back after a gap)
+    if (this.bufMed.length < count) this.bufMed = new Float64Array(Math.max(count, 2 * this.bufMed.length));
     const previous = steps.slot - this.lookFrames;
     const { x, y, trackRow, trackId } = steps;
     let n = 0;

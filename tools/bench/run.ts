@@ -122,7 +122,9 @@ if (!skipLive) {
   // so the ratio's ceiling is 1 + R_pipeline-only / R_json-decode (reached only if receiving,
   // decoding, recording and the dashboards cost nothing).
   const jsonCeiling = 1 + full.median / jsonIngest;
-  console.log(`ceiling of the JSON-rows ratio: 1 + ${full.median.toExponential(2)} (pipeline only) / ${jsonIngest.toExponential(2)} (JSON rows decode) = ${jsonCeiling.toFixed(2)}`);
+  // (an estimate: it takes the JSON decode at its stand-alone rate, and inside the busy server the
+  // decode costs more, so the measured ratio can pass it)
+  console.log(`bound of the JSON-rows ratio if only the pipeline and the JSON decode (at its stand-alone rate) cost anything: 1 + ${full.median.toExponential(2)} (pipeline only) / ${jsonIngest.toExponential(2)} (JSON rows decode) = ${jsonCeiling.toFixed(2)}`);
   const share = (v: number | null): string => (v === null ? 'not measured' : `${v.toFixed(0)} %`);
   console.log(`CPU over the msgpack run, in % of one core: server main thread ${share(packed.cpu.serverMainThread)} busy, server process ${share(packed.cpu.serverProcess)} (main and recording threads), rig ${share(packed.cpu.rig)}`);
   // "No growing queue": at the end of the sustained run the server is less than one second of frames behind.
@@ -138,7 +140,7 @@ if (!skipLive) {
   );
   verdict(
     'end to end against a JSON row-wise rig',
-    `${ratio.toFixed(2)}× (ceiling in this run ${jsonCeiling.toFixed(2)}×; ${columnRatio.toFixed(2)}× the contract's JSON columns)`,
+    `${ratio.toFixed(2)}× (pipeline-and-decode bound ${jsonCeiling.toFixed(2)}×; ${columnRatio.toFixed(2)}× the contract's JSON columns)`,
     '≥ 2× JSON',
     ratio >= 2,
   );

@@ -57,6 +57,7 @@ export function encodeUpdate(state: RunState, encoding: Encoding, coalesced: num
   }
   let body = byEncoding.get(encoding);
   if (body === undefined) {
+    // (a state without positions, as some tests build, is encoded whole)
     body = encoding === 'json' && state.positions ? updateJson(state) : encodeMessage({ type: 'update', ...state }, encoding);
     byEncoding.set(encoding, body);
   }

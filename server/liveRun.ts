@@ -382,7 +382,7 @@ export class LiveRun {
   /**
    * The kept frames as plain arrays, each frame's built once and shared by every later state that
    * still carries it (the arrays are never changed afterwards; a JSON update also encodes each
-   * frame's part once, see `positionsJson`).
+   * frame's part once: `positionsJson` in encodeUpdate.ts).
    */
   private positions(): RunPositions {
     return {

@@ -45,7 +45,7 @@ export interface ServerOptions {
   trailFrames?: number;
   /**
    * Least data time between two frames kept for the trails, ms (default 50; 0 keeps every
-   * frame): the trails then span the same time (8 × 50 ms) at 20 or 1,000 frames/s.
+   * frame): 8 trail frames then span the same 0.35 s (7 × 50 ms) at 20 or 1,000 frames/s.
    */
   trailSpacingMs?: number;
   /** Static files of the dashboard (default `web/dist`, else `web/index.html` as a placeholder). */

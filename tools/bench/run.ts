@@ -4,7 +4,7 @@
 // The 10-minute soak is separate: node --import tsx/esm tools/bench/liveLatency.ts 1000 100 600 30 30
 import { analyzeThroughput } from './analyzeThroughput.js';
 import { detectorCosts } from './detectorCosts.js';
-import { endToEnd, type EndToEndResult } from './endToEnd.js';
+import { endToEnd, type BenchEncoding, type EndToEndResult } from './endToEnd.js';
 import { machineLine, table, type BenchFigure } from './harness.js';
 import { ingestThroughput } from './ingestThroughput.js';
 import { liveLatency } from './liveLatency.js';
@@ -94,10 +94,10 @@ if (!skipLive) {
   // on each encoding; the mean of the groups' ratios. The target's peer is a JSON row-wise rig
   // (one record per particle, the server's `rows` extension); the contract's own JSON form (one
   // array of numbers per field) is reported beside it.
-  const groups: Record<'msgpack' | 'json' | 'json-rows', EndToEndResult>[] = [];
+  const groups: Record<BenchEncoding, EndToEndResult>[] = [];
   for (let group = 0; group < 2; group++) {
-    const order = (group === 0 ? ['json-rows', 'json', 'msgpack'] : ['msgpack', 'json', 'json-rows']) as ('msgpack' | 'json' | 'json-rows')[];
-    const results = {} as Record<'msgpack' | 'json' | 'json-rows', EndToEndResult>;
+    const order: BenchEncoding[] = group === 0 ? ['json-rows', 'json', 'msgpack'] : ['msgpack', 'json', 'json-rows'];
+    const results = {} as Record<BenchEncoding, EndToEndResult>;
     for (const encoding of order) results[encoding] = await endToEnd(encoding, 1000, liveSeconds);
     groups.push(results);
   }
@@ -119,12 +119,12 @@ if (!skipLive) {
   console.log(`\nceilings: end to end is ${(packed.centroidsPerSecond / full.median).toFixed(2)}× the pipeline-only figure of this run; the JSON-rows ratio on a serial server is about 1 + ${packedMean.toExponential(2)} / ${jsonIngest.toExponential(2)} (JSON rows decode) = ${(1 + packedMean / jsonIngest).toFixed(2)}, measured ${ratio.toFixed(2)}`);
   // The server runs the pipeline on its main thread, so no encoding takes it past the
   // pipeline-only figure; on that serial thread a JSON rig's centroid costs one JSON decode more,
-  // so the ratio's ceiling is 1 + R_pipeline-only / R_json-decode (reached only if receiving,
-  // decoding, recording and the dashboards cost nothing).
-  const jsonCeiling = 1 + full.median / jsonIngest;
-  // (an estimate: it takes the JSON decode at its stand-alone rate, and inside the busy server the
-  // decode costs more, so the measured ratio can pass it)
-  console.log(`bound of the JSON-rows ratio if only the pipeline and the JSON decode (at its stand-alone rate) cost anything: 1 + ${full.median.toExponential(2)} (pipeline only) / ${jsonIngest.toExponential(2)} (JSON rows decode) = ${jsonCeiling.toFixed(2)}`);
+  // so if receiving, recording and the dashboards cost nothing the ratio would be
+  // 1 + R_pipeline-only / R_json-decode. An estimate, not a ceiling: it takes the JSON decode at its
+  // stand-alone rate, and inside the busy server the decode costs more, so the measured ratio can
+  // pass it (2.46 against 2.34 on 2026-12-03).
+  const jsonBound = 1 + full.median / jsonIngest;
+  console.log(`bound of the JSON-rows ratio if only the pipeline and the JSON decode (at its stand-alone rate) cost anything: 1 + ${full.median.toExponential(2)} (pipeline only) / ${jsonIngest.toExponential(2)} (JSON rows decode) = ${jsonBound.toFixed(2)}`);
   const share = (v: number | null): string => (v === null ? 'not measured' : `${v.toFixed(0)} %`);
   console.log(`CPU over the msgpack run, in % of one core: server main thread ${share(packed.cpu.serverMainThread)} busy, server process ${share(packed.cpu.serverProcess)} (main and recording threads), rig ${share(packed.cpu.rig)}`);
   // "No growing queue": at the end of the sustained run the server is less than one second of frames behind.
@@ -140,7 +140,7 @@ if (!skipLive) {
   );
   verdict(
     'end to end against a JSON row-wise rig',
-    `${ratio.toFixed(2)}× (pipeline-and-decode bound ${jsonCeiling.toFixed(2)}×; ${columnRatio.toFixed(2)}× the contract's JSON columns)`,
+    `${ratio.toFixed(2)}× (pipeline-and-decode bound ${jsonBound.toFixed(2)}×; ${columnRatio.toFixed(2)}× the contract's JSON columns)`,
     '≥ 2× JSON',
     ratio >= 2,
   );
